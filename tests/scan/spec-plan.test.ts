@@ -1,0 +1,151 @@
+/**
+ * Spec validation and the plan: every malformed spec names its field; point ids map to parameters
+ * as documented (mixed radix, counter-based random, Latin hypercube); planning is constant memory.
+ */
+import { describe, expect, it } from 'vitest';
+import { parseSpec, resolvedSpecJson, specFromResolvedJson, specHash } from '../../scheduler/spec.js';
+import { PARAMETER_COLUMNS, Plan, permuteIndex, uniform01 } from '../../scheduler/plan.js';
+import { MALFORMED, baseSpec, malformed } from './malformed-specs.js';
+
+const col = (name: string): number => PARAMETER_COLUMNS.indexOf(name);
+
+describe('spec validation', () => {
+  it('accepts the base spec and resolves defaults', () => {
+    const { spec, issues } = parseSpec(baseSpec());
+    expect(issues).toEqual([]);
+    expect(spec!.model.g_l).toBe(0);
+    expect(spec!.model.width_med).toBeNull();
+    expect(spec!.setup.targets[0]!.energyGeV[1]).toBe(Infinity);
+  });
+
+  it.each(MALFORMED.map((c) => [c.what, c] as const))('rejects %s, naming the field', (_what, c) => {
+    const { spec, issues } = parseSpec(malformed(c));
+    expect(spec, `accepted: ${c.what}`).toBeUndefined();
+    const paths = issues.map((i) => i.path);
+    expect(paths.some((p) => p.startsWith(c.path)), `expected an issue at ${c.path}, got ${JSON.stringify(issues)}`).toBe(true);
+    for (const i of issues) expect(i.message.length).toBeGreaterThan(0);
+  });
+
+  it('has at least 30 malformed cases', () => expect(MALFORMED.length).toBeGreaterThanOrEqual(30));
+
+  it('reports every problem at once', () => {
+    const s = baseSpec();
+    s.model.g_q = -1;
+    s.axes.m_chi.to = 1e9;
+    s.detectors[0].name = 'BAD';
+    s.targets[0].coneDeg = 0;
+    const { issues } = parseSpec(s);
+    const paths = issues.map((i) => i.path);
+    expect(paths).toEqual(expect.arrayContaining(['model.g_q', 'axes.m_chi.to', 'detectors[0].name', 'targets[0].coneDeg']));
+    const range = issues.find((i) => i.path === 'axes.m_chi.to')!;
+    expect(range.seen).toBe('1000000000');
+    expect(range.allowed).toContain('m_chi <= 100000');
+  });
+
+  it('round-trips the resolved form exactly and hashes it stably', () => {
+    const { spec } = parseSpec(baseSpec());
+    const json = resolvedSpecJson(spec!);
+    const again = specFromResolvedJson(json);
+    expect(resolvedSpecJson(again)).toBe(json);
+    expect(specHash(json)).toBe(specHash(resolvedSpecJson(parseSpec(baseSpec()).spec!)));
+    const other = baseSpec();
+    other.axes.m_chi.steps = 6;
+    expect(specHash(resolvedSpecJson(parseSpec(other).spec!))).not.toBe(specHash(json));
+  });
+});
+
+describe('plan', () => {
+  it('grid ids are mixed-radix numbers, last axis fastest, ends exact', () => {
+    const plan = new Plan(parseSpec(baseSpec()).spec!, 3);
+    expect(plan.total).toBe(10);
+    expect(plan.chunkCount).toBe(4);
+    expect(plan.chunkRange(3)).toEqual({ chunk: 3, firstId: 9, n: 1 });
+    const p0 = plan.point(0);
+    const p1 = plan.point(1);
+    const p9 = plan.point(9);
+    expect([p0.m_chi, p0.m_med, p1.m_chi, p1.m_med, p9.m_chi, p9.m_med]).toEqual([10, 100, 10, 1000, 1000, 1000]);
+    // log spacing: 10 * 100^(2/4) = 100 (up to rounding in pow)
+    expect(plan.point(4).m_chi).toBeCloseTo(100, 10);
+    // equals axis: g_chi = m_med / 1000
+    expect(p1.g_chi).toBe(1);
+    expect(p0.g_chi).toBe(0.1);
+    expect(p0.dm).toBe('dirac');
+  });
+
+  it('random points depend only on (seed, id)', () => {
+    const s = baseSpec();
+    delete s.axes.m_chi.steps;
+    s.sampling = { kind: 'random', count: 1000, seed: 42 };
+    const plan = new Plan(parseSpec(s).spec!, 100);
+    const a = plan.point(777);
+    const fresh = new Plan(parseSpec(s).spec!, 7);
+    expect(fresh.point(777)).toEqual(a);
+    expect(a.m_chi).toBeGreaterThanOrEqual(10);
+    expect(a.m_chi).toBeLessThan(1000);
+    s.sampling.seed = 43;
+    expect(new Plan(parseSpec(s).spec!, 100).point(777)).not.toEqual(a);
+  });
+
+  it('uniform01 is in [0,1) and roughly uniform (mean 0.5 +- 5 sigma)', () => {
+    let sum = 0;
+    const n = 20000;
+    for (let i = 0; i < n; i++) {
+      const u = uniform01(9, i, 0);
+      expect(u >= 0 && u < 1).toBe(true);
+      sum += u;
+    }
+    // sigma of the mean of n uniforms is 1/sqrt(12 n) (common practice, no source)
+    expect(Math.abs(sum / n - 0.5)).toBeLessThan(5 / Math.sqrt(12 * n));
+  });
+
+  it('Latin hypercube puts exactly one point in every stratum of every axis', () => {
+    for (const n of [1, 7, 1000, 4097]) {
+      for (const axis of [0, 1]) {
+        const seen = new Uint8Array(n);
+        for (let id = 0; id < n; id++) seen[permuteIndex(id, n, 5, axis)]!++;
+        expect(seen.every((c) => c === 1), `n=${n} axis=${axis}`).toBe(true);
+      }
+    }
+    const s = baseSpec();
+    delete s.axes.m_chi.steps;
+    s.axes.m_chi.spacing = 'lin';
+    s.sampling = { kind: 'latin_hypercube', count: 50, seed: 3 };
+    const plan = new Plan(parseSpec(s).spec!, 10);
+    const strata = new Set<number>();
+    for (let id = 0; id < 50; id++) strata.add(Math.floor(((plan.point(id).m_chi - 10) / 990) * 50));
+    expect(strata.size).toBe(50);
+  });
+
+  it('an equals value out of range fails that point only', () => {
+    const s = baseSpec();
+    s.axes.g_chi.equals = 'm_med / 10'; // 100 > 4 pi for m_med = 1000
+    const plan = new Plan(parseSpec(s).spec!, 10);
+    expect(plan.point(0).g_chi).toBe(10);
+    expect(() => plan.point(1)).toThrow(/g_chi = 100 from 'm_med \/ 10' is outside/);
+  });
+
+  it('plans a 1e8-point grid in constant memory', () => {
+    const s = baseSpec();
+    s.axes = { m_chi: { from: 1, to: 1e4, steps: 10000, spacing: 'log' }, m_med: { from: 1, to: 1e4, steps: 10000, spacing: 'log' } };
+    const plan = new Plan(parseSpec(s).spec!, 1000);
+    expect(plan.total).toBe(1e8);
+    globalThis.gc?.();
+    const before = process.memoryUsage().heapUsed;
+    let chunks = 0;
+    let points = 0;
+    let last = -1;
+    for (const c of plan.chunks()) {
+      chunks++;
+      points += c.n;
+      expect(c.firstId).toBe(last + 1);
+      last = c.firstId + c.n - 1;
+      if (chunks % 10000 === 0) plan.point(c.firstId);
+    }
+    const grown = process.memoryUsage().heapUsed - before;
+    expect(chunks).toBe(100000);
+    expect(points).toBe(1e8);
+    expect(plan.point(99_999_999)).toMatchObject({ m_chi: 1e4, m_med: 1e4 });
+    // a materialised plan would need >= 8 bytes per point (800 MB); allow 32 MB of garbage
+    expect(grown).toBeLessThan(32 * 1024 * 1024);
+  });
+});

@@ -1,0 +1,152 @@
+/**
+ * A read-only view of a scan ledger for pictures and reports, in the ledger contract shape
+ * (scans, points, verdicts; see the project design). Opened with `{ readonly: true }` so that a
+ * plot taken while a scan runs never blocks or alters the writer. Name checks return Issues, so a
+ * wrong column or constraint set is reported with what exists.
+ */
+import fs from 'node:fs';
+import Database from 'better-sqlite3';
+import { InvalidInputError, type Issue } from '../../physics/issue.js';
+
+export interface ScanRow {
+  readonly id: number;
+  readonly name: string;
+  readonly spec_json: string;
+  readonly spec_hash: string;
+  readonly code_version: string;
+  readonly created_at: string;
+  readonly status: string;
+  /** any further provenance columns the ledger writer stores (constants edition, knobs...) */
+  readonly [extra: string]: unknown;
+}
+
+/** Columns of `points` that are bookkeeping rather than quantities. */
+const POINT_KEYS = new Set(['scan_id', 'point_id']);
+/** Columns of `verdicts` that are not constraint outcomes. */
+const VERDICT_KEYS = new Set(['scan_id', 'constraint_set', 'point_id', 'survives']);
+
+export class LedgerView {
+  readonly db: Database.Database;
+  private closed = false;
+
+  private constructor(db: Database.Database) {
+    this.db = db;
+  }
+
+  /** Opens a ledger file read-only; a missing or non-ledger file is bad input naming `path`. */
+  static open(file: string, path = 'DB'): LedgerView {
+    if (!fs.existsSync(file)) {
+      throw new InvalidInputError([{ code: 'missing_file', path, message: `ledger file not found: ${file}`, seen: file }]);
+    }
+    let db: Database.Database;
+    try {
+      db = new Database(file, { readonly: true, fileMustExist: true });
+      db.prepare('SELECT 1 FROM scans LIMIT 1').get();
+    } catch (err) {
+      throw new InvalidInputError([{
+        code: 'not_a_ledger', path, seen: file,
+        message: `not a darksieve ledger (no readable scans table): ${(err as Error).message}`,
+      }]);
+    }
+    return new LedgerView(db);
+  }
+
+  close(): void {
+    if (this.closed) return;
+    this.closed = true;
+    this.db.close();
+  }
+
+  scans(): ScanRow[] {
+    return this.db.prepare('SELECT * FROM scans ORDER BY id').all() as ScanRow[];
+  }
+
+  /** The scan with this id, or the only / most recent scan when no id is given. */
+  scan(id: number | undefined, path = '--scan'): ScanRow {
+    const all = this.scans();
+    if (all.length === 0) throw new InvalidInputError([{ code: 'empty_ledger', path: 'DB', message: 'the ledger holds no scan' }]);
+    if (id === undefined) return all[all.length - 1] as ScanRow;
+    const found = all.find((s) => Number(s.id) === id);
+    if (!found) {
+      throw new InvalidInputError([{
+        code: 'unknown_scan', path, message: `no scan with id ${id} in this ledger`,
+        seen: String(id), allowed: all.map((s) => String(s.id)).join(', '),
+      }]);
+    }
+    return found;
+  }
+
+  /** Quantity columns of `points` (parameters and observables) with their declared SQL type. */
+  pointColumns(): { name: string; type: string }[] {
+    const cols = this.db.prepare("SELECT name, type FROM pragma_table_info('points')").all() as { name: string; type: string }[];
+    return cols.filter((c) => !POINT_KEYS.has(c.name));
+  }
+
+  /** Columns that hold numbers (text columns such as dm, mediator and flags are left out). */
+  numericColumns(scanId: number): string[] {
+    return this.pointColumns()
+      .filter((c) => {
+        if (/INT|REAL|NUM|FLOA|DOUB/i.test(c.type)) return true;
+        if (c.type !== '') return false;
+        const row = this.db.prepare(`SELECT typeof(${quoteId(c.name)}) AS t FROM points WHERE scan_id = ? AND ${quoteId(c.name)} IS NOT NULL LIMIT 1`).get(scanId) as { t: string } | undefined;
+        return row !== undefined && (row.t === 'real' || row.t === 'integer');
+      })
+      .map((c) => c.name);
+  }
+
+  hasVerdicts(): boolean {
+    return this.db.prepare("SELECT 1 FROM sqlite_master WHERE type = 'table' AND name = 'verdicts'").get() !== undefined;
+  }
+
+  constraintSets(scanId: number): string[] {
+    if (!this.hasVerdicts()) return [];
+    const rows = this.db.prepare('SELECT DISTINCT constraint_set AS s FROM verdicts WHERE scan_id = ? ORDER BY rowid').all(scanId) as { s: string }[];
+    return rows.map((r) => r.s);
+  }
+
+  /** Constraint outcome columns of `verdicts` (one 0/1 column per constraint). */
+  constraintColumns(): string[] {
+    if (!this.hasVerdicts()) return [];
+    const cols = this.db.prepare("SELECT name FROM pragma_table_info('verdicts')").all() as { name: string }[];
+    return cols.map((c) => c.name).filter((n) => !VERDICT_KEYS.has(n));
+  }
+
+  /**
+   * The constraint set to show: the named one, the only one, or null when the scan was never
+   * judged. Several sets and no name is ambiguous and reported with the choices.
+   */
+  resolveConstraintSet(scanId: number, name: string | undefined, path = '--set'): string | null {
+    const sets = this.constraintSets(scanId);
+    if (name !== undefined) {
+      if (!sets.includes(name)) {
+        throw new InvalidInputError([{
+          code: 'unknown_constraint_set', path, message: `no verdicts for constraint set '${name}' in scan ${scanId}`,
+          seen: name, allowed: sets.length ? sets.join(', ') : '(the scan has not been judged)',
+        }]);
+      }
+      return name;
+    }
+    if (sets.length === 0) return null;
+    if (sets.length === 1) return sets[0] as string;
+    throw new InvalidInputError([{
+      code: 'ambiguous_constraint_set', path, message: 'the scan was judged against several constraint sets: choose one with --set',
+      allowed: sets.join(', '),
+    }]);
+  }
+
+  /** Issues for names that are not numeric point columns of this scan. */
+  checkColumns(scanId: number, wanted: readonly { path: string; name: string }[]): Issue[] {
+    const numeric = this.numericColumns(scanId);
+    return wanted
+      .filter((w) => !numeric.includes(w.name))
+      .map((w) => ({
+        code: 'unknown_column', path: w.path, message: `'${w.name}' is not a numeric parameter or observable of this scan`,
+        seen: w.name, allowed: numeric.join(', '),
+      }));
+  }
+}
+
+/** Quotes an identifier for SQL; names always come from the ledger's own schema before use. */
+export function quoteId(name: string): string {
+  return `"${name.replace(/"/g, '""')}"`;
+}

@@ -1,0 +1,271 @@
+/**
+ * Reads what a picture of one plane needs from a ledger, choosing how to show it:
+ *  - `grid`: both axes take a small set of values that every combination covers (a grid scan's
+ *    own axes): one cell per grid node, aggregated over any other axes;
+ *  - `scatter`: up to SCATTER_MAX_POINTS points, each drawn;
+ *  - `binned`: more points than that: a 2-D histogram with per-bin aggregates computed in SQL
+ *    (GROUP BY on bin indices), so a 10^6-point ledger never crosses into JavaScript point by point.
+ * Grid detection reads the data, not the spec: a plane is gridded when the distinct x values times
+ * the distinct y values are at most the number of points and every pair occurs. Random sampling
+ * never passes that test; a grid scan's axes always do.
+ */
+import type { LedgerView } from './ledger-view.js';
+import { quoteId } from './ledger-view.js';
+import {
+  chooseScale, paddedDomain, toScaleSpace, fromScaleSpace,
+  type ColumnStats, type ScaleChoice, type ScaleType,
+} from './axis-scale.js';
+
+/** Knob: largest number of points drawn one by one (Plot renders 10^4 dots in about 0.4 s). */
+export const SCATTER_MAX_POINTS = 20_000;
+/** Knob: histogram bins along x and y for large ledgers (about 5 px per bin at the default size). */
+export const BINS_X = 110;
+export const BINS_Y = 80;
+/** Knob: a plane with more distinct values than this along an axis is never treated as a grid. */
+export const GRID_MAX_VALUES = 400;
+
+export type PointStatus = 'survives' | 'excluded' | 'unjudged';
+
+export interface PlaneRequest {
+  readonly scanId: number;
+  readonly x: string;
+  readonly y: string;
+  readonly color?: string;
+  readonly survivorsOnly: boolean;
+  /** constraint set whose verdicts tell survivors from excluded points; null: not judged */
+  readonly constraintSet: string | null;
+  readonly xScale: ScaleChoice;
+  readonly yScale: ScaleChoice;
+  readonly colorScale: ScaleChoice;
+}
+
+export interface AxisInfo {
+  readonly column: string;
+  readonly type: ScaleType;
+  readonly domain: [number, number];
+}
+
+/** One drawn point (scatter mode). */
+export interface ScatterPoint {
+  readonly x: number;
+  readonly y: number;
+  readonly c: number | null;
+  readonly status: PointStatus;
+}
+
+/** One rectangle (binned and grid modes), in data coordinates. */
+export interface Cell {
+  readonly x1: number;
+  readonly x2: number;
+  readonly y1: number;
+  readonly y2: number;
+  /** points in the cell */
+  readonly n: number;
+  readonly nSurvive: number;
+  readonly nJudged: number;
+  /** colour value: aggregate over the cell's survivors when it has any, else over all its points */
+  readonly c: number | null;
+}
+
+export interface PlaneData {
+  readonly mode: 'scatter' | 'binned' | 'grid';
+  readonly x: AxisInfo;
+  readonly y: AxisInfo;
+  readonly color: AxisInfo | null;
+  readonly judged: boolean;
+  /** points with x and y on their axes */
+  readonly drawnPoints: number;
+  /** points left out: a missing (NULL) x or y, or a value <= 0 on a log axis */
+  readonly omittedPoints: number;
+  readonly points: readonly ScatterPoint[];
+  readonly cells: readonly Cell[];
+  /** grid mode: sorted distinct axis values */
+  readonly gridX: readonly number[];
+  readonly gridY: readonly number[];
+  /** grid mode: largest number of points sharing one cell (1: the plane is the whole grid) */
+  readonly pointsPerCell: number;
+}
+
+interface SqlParts {
+  from: string;
+  params: unknown[];
+  survive: string;
+}
+
+function sqlParts(req: PlaneRequest): SqlParts {
+  if (req.constraintSet === null) return { from: 'points p', params: [], survive: 'NULL' };
+  return {
+    from: 'points p LEFT JOIN verdicts v ON v.scan_id = p.scan_id AND v.point_id = p.point_id AND v.constraint_set = ?',
+    params: [req.constraintSet],
+    survive: 'v.survives',
+  };
+}
+
+function columnStats(view: LedgerView, req: PlaneRequest, parts: SqlParts, column: string): ColumnStats {
+  const c = `p.${quoteId(column)}`;
+  const filter = req.survivorsOnly ? ` AND ${parts.survive} = 1` : '';
+  const row = view.db.prepare(
+    `SELECT COUNT(${c}) AS count, MIN(${c}) AS min, MAX(${c}) AS max,
+            MIN(CASE WHEN ${c} > 0 THEN ${c} END) AS minPositive,
+            SUM(CASE WHEN ${c} <= 0 THEN 1 ELSE 0 END) AS nonPositive
+       FROM ${parts.from} WHERE p.scan_id = ?${filter}`,
+  ).get(...parts.params, req.scanId) as { count: number; min: number | null; max: number | null; minPositive: number | null; nonPositive: number | null };
+  return { ...row, nonPositive: row.nonPositive ?? 0 };
+}
+
+function statusOf(survives: number | null): PointStatus {
+  if (survives === null || survives === undefined) return 'unjudged';
+  return survives ? 'survives' : 'excluded';
+}
+
+/** Gathers the data of one plane; throws nothing for an empty plane (the picture says so). */
+export function readPlane(view: LedgerView, req: PlaneRequest): PlaneData {
+  const parts = sqlParts(req);
+  const xStats = columnStats(view, req, parts, req.x);
+  const yStats = columnStats(view, req, parts, req.y);
+  const xType = chooseScale(xStats, req.xScale);
+  const yType = chooseScale(yStats, req.yScale);
+  const xDomain = paddedDomain(xStats, xType) ?? [0, 1];
+  const yDomain = paddedDomain(yStats, yType) ?? [0, 1];
+  const x: AxisInfo = { column: req.x, type: xType, domain: xDomain };
+  const y: AxisInfo = { column: req.y, type: yType, domain: yDomain };
+  let color: AxisInfo | null = null;
+  if (req.color !== undefined) {
+    const cStats = columnStats(view, req, parts, req.color);
+    const cType = chooseScale(cStats, req.colorScale);
+    const raw = cType === 'log' ? [cStats.minPositive, cStats.max] : [cStats.min, cStats.max];
+    const domain: [number, number] = raw[0] !== null && raw[1] !== null && raw[0] !== undefined && raw[1] !== undefined
+      ? [raw[0], raw[1] > raw[0] ? raw[1] : raw[0] * (cType === 'log' ? 10 : 1) + (cType === 'log' ? 0 : 1)]
+      : [1, 10];
+    color = { column: req.color, type: cType, domain };
+  }
+
+  const xc = `p.${quoteId(req.x)}`;
+  const yc = `p.${quoteId(req.y)}`;
+  const conds = [`p.scan_id = ?`, `${xc} IS NOT NULL`, `${yc} IS NOT NULL`];
+  if (xType === 'log') conds.push(`${xc} > 0`);
+  if (yType === 'log') conds.push(`${yc} > 0`);
+  // the grid is recognised on all points, so that --survivors-only keeps the grid's cells
+  const gridWhere = conds.join(' AND ');
+  if (req.survivorsOnly) conds.push(`${parts.survive} = 1`);
+  const where = conds.join(' AND ');
+  const params = [...parts.params, req.scanId];
+
+  const totalRow = view.db.prepare(
+    `SELECT COUNT(*) AS n FROM ${parts.from} WHERE p.scan_id = ?${req.survivorsOnly ? ` AND ${parts.survive} = 1` : ''}`,
+  ).get(...params) as { n: number };
+  const drawn = (view.db.prepare(`SELECT COUNT(*) AS n FROM ${parts.from} WHERE ${where}`).get(...params) as { n: number }).n;
+  const base = {
+    x, y, color, judged: req.constraintSet !== null, drawnPoints: drawn, omittedPoints: totalRow.n - drawn,
+  };
+
+  const cExpr = colorExpr(req.color, color?.type);
+  const grid = detectGrid(view, parts, gridWhere, params, xc, yc);
+  if (grid) {
+    const rows = view.db.prepare(
+      `SELECT ${xc} AS x, ${yc} AS y, COUNT(*) AS n,
+              SUM(CASE WHEN ${parts.survive} = 1 THEN 1 ELSE 0 END) AS nSurvive,
+              COUNT(${parts.survive}) AS nJudged,
+              AVG(CASE WHEN ${parts.survive} = 1 THEN ${cExpr} END) AS cSurvive, AVG(${cExpr}) AS cAll
+         FROM ${parts.from} WHERE ${where} GROUP BY ${xc}, ${yc}`,
+    ).all(...params) as { x: number; y: number; n: number; nSurvive: number; nJudged: number; cSurvive: number | null; cAll: number | null }[];
+    const xEdges = cellEdges(grid.xs, xType);
+    const yEdges = cellEdges(grid.ys, yType);
+    const xIndex = new Map(grid.xs.map((v, i) => [v, i]));
+    const yIndex = new Map(grid.ys.map((v, i) => [v, i]));
+    let perCell = 0;
+    const cells: Cell[] = rows.map((r) => {
+      const i = xIndex.get(r.x) as number;
+      const j = yIndex.get(r.y) as number;
+      perCell = Math.max(perCell, r.n);
+      return {
+        x1: xEdges[i] as number, x2: xEdges[i + 1] as number, y1: yEdges[j] as number, y2: yEdges[j + 1] as number,
+        n: r.n, nSurvive: r.nSurvive, nJudged: r.nJudged,
+        c: colorValue(r.nSurvive > 0 ? r.cSurvive : r.cAll, color?.type),
+      };
+    });
+    return {
+      ...base, mode: 'grid', points: [], cells, gridX: grid.xs, gridY: grid.ys, pointsPerCell: perCell,
+      x: { ...x, domain: [xEdges[0] as number, xEdges[xEdges.length - 1] as number] },
+      y: { ...y, domain: [yEdges[0] as number, yEdges[yEdges.length - 1] as number] },
+    };
+  }
+
+  if (drawn <= SCATTER_MAX_POINTS) {
+    const rows = view.db.prepare(
+      `SELECT ${xc} AS x, ${yc} AS y, ${req.color ? `p.${quoteId(req.color)}` : 'NULL'} AS c, ${parts.survive} AS s
+         FROM ${parts.from} WHERE ${where} ORDER BY p.point_id`,
+    ).raw().all(...params) as [number, number, number | null, number | null][];
+    const points = rows.map(([px, py, pc, ps]) => ({
+      x: px, y: py, c: pc === null || (color?.type === 'log' && pc <= 0) ? null : pc, status: statusOf(ps),
+    }));
+    return { ...base, mode: 'scatter', points, cells: [], gridX: [], gridY: [], pointsPerCell: 0 };
+  }
+
+  const [ux0, ux1] = xDomain.map((v) => toScaleSpace(xType, v)) as [number, number];
+  const [uy0, uy1] = yDomain.map((v) => toScaleSpace(yType, v)) as [number, number];
+  const dx = (ux1 - ux0) / BINS_X;
+  const dy = (uy1 - uy0) / BINS_Y;
+  const ux = xType === 'log' ? `log10(${xc})` : xc;
+  const uy = yType === 'log' ? `log10(${yc})` : yc;
+  const rows = view.db.prepare(
+    `SELECT MIN(${BINS_X - 1}, CAST((${ux} - ?) / ? AS INTEGER)) AS i,
+            MIN(${BINS_Y - 1}, CAST((${uy} - ?) / ? AS INTEGER)) AS j,
+            COUNT(*) AS n,
+            SUM(CASE WHEN ${parts.survive} = 1 THEN 1 ELSE 0 END) AS nSurvive,
+            COUNT(${parts.survive}) AS nJudged,
+            AVG(CASE WHEN ${parts.survive} = 1 THEN ${cExpr} END) AS cSurvive, AVG(${cExpr}) AS cAll
+       FROM ${parts.from} WHERE ${where} GROUP BY i, j`,
+  ).all(ux0, dx, uy0, dy, ...params) as { i: number; j: number; n: number; nSurvive: number; nJudged: number; cSurvive: number | null; cAll: number | null }[];
+  const cells: Cell[] = rows.map((r) => ({
+    x1: fromScaleSpace(xType, ux0 + r.i * dx), x2: fromScaleSpace(xType, ux0 + (r.i + 1) * dx),
+    y1: fromScaleSpace(yType, uy0 + r.j * dy), y2: fromScaleSpace(yType, uy0 + (r.j + 1) * dy),
+    n: r.n, nSurvive: r.nSurvive, nJudged: r.nJudged,
+    c: colorValue(r.nSurvive > 0 ? r.cSurvive : r.cAll, color?.type),
+  }));
+  return { ...base, mode: 'binned', points: [], cells, gridX: [], gridY: [], pointsPerCell: 0 };
+}
+
+/** SQL for the per-cell colour aggregate: the mean of log10 (a geometric mean) on log colour scales. */
+function colorExpr(column: string | undefined, type: ScaleType | undefined): string {
+  if (column === undefined) return 'NULL';
+  const c = `p.${quoteId(column)}`;
+  return type === 'log' ? `CASE WHEN ${c} > 0 THEN log10(${c}) END` : c;
+}
+
+function colorValue(aggregate: number | null, type: ScaleType | undefined): number | null {
+  if (aggregate === null || type === undefined) return null;
+  return type === 'log' ? 10 ** aggregate : aggregate;
+}
+
+function detectGrid(
+  view: LedgerView, parts: SqlParts, where: string, params: unknown[], xc: string, yc: string,
+): { xs: number[]; ys: number[] } | null {
+  const all = (view.db.prepare(`SELECT COUNT(*) AS n FROM ${parts.from} WHERE ${where}`).get(...params) as { n: number }).n;
+  if (all < 4) return null;
+  const distinct = (col: string): number[] =>
+    (view.db.prepare(`SELECT DISTINCT ${col} AS v FROM ${parts.from} WHERE ${where} LIMIT ${GRID_MAX_VALUES + 1}`)
+      .raw().all(...params) as [number][]).map((r) => r[0]);
+  const xs = distinct(xc);
+  if (xs.length < 2 || xs.length > GRID_MAX_VALUES) return null;
+  const ys = distinct(yc);
+  if (ys.length < 2 || ys.length > GRID_MAX_VALUES || xs.length * ys.length > all) return null;
+  const pairs = (view.db.prepare(`SELECT COUNT(*) AS n FROM (SELECT DISTINCT ${xc}, ${yc} FROM ${parts.from} WHERE ${where})`)
+    .get(...params) as { n: number }).n;
+  if (pairs !== xs.length * ys.length) return null;
+  return { xs: xs.sort((a, b) => a - b), ys: ys.sort((a, b) => a - b) };
+}
+
+/** Cell boundaries halfway between neighbouring grid values (in scale space), half a step beyond the ends. */
+function cellEdges(values: readonly number[], type: ScaleType): number[] {
+  const u = values.map((v) => toScaleSpace(type, v));
+  const edges: number[] = [];
+  for (let i = 0; i <= u.length; i++) {
+    const lo = u[Math.max(0, i - 1)] as number;
+    const hi = u[Math.min(u.length - 1, i)] as number;
+    if (i === 0) edges.push((u[0] as number) - ((u[1] as number) - (u[0] as number)) / 2);
+    else if (i === u.length) edges.push((u[i - 1] as number) + ((u[i - 1] as number) - (u[i - 2] as number)) / 2);
+    else edges.push((lo + hi) / 2);
+  }
+  return edges.map((e) => fromScaleSpace(type, e));
+}

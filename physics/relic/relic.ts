@@ -1,0 +1,230 @@
+/**
+ * Relic-abundance stage: Omega h^2, x_f and <sigma v>(x_f) of one model point from its
+ * annihilation cross section sigma(s).
+ *
+ * Data flow: sigma(s) (physics/annihilation.ts) -> starting guess for x_f (the standard
+ * approximation, Kolb & Turner 1990 §5.2, relic.md eq. 3.1 with c = 1/2, using the exact thermal
+ * average at the trial x) -> <sigma v>(x) tabulated once on [tableStartFraction x_f guess, tableXMax]
+ * (physics/relic/thermal-average.ts) -> full Boltzmann solution with the analytic tail
+ * (physics/relic/boltzmann.ts) -> Omega h^2 = C (m/GeV) Y_0 (relic.md eq. 1.9, C =
+ * OMEGA_YIELD_FACTOR of physics/constants.ts).
+ *
+ * Dirac dark matter, convention A of relic.md §4: the chi population alone is tracked with g = 2 and
+ * <sigma v> = <sigma v>(chi chibar -> SM) (the Annihilation of a Dirac point describes chi chibar),
+ * and Omega_DM = Omega_chi + Omega_chibar = 2 Omega_chi (no asymmetry). Majorana: g = 2, sigma of
+ * chi chi, Omega = Omega_chi. The required Dirac <sigma v>(chi chibar) is ~2.07x the Majorana one,
+ * not 2x (relic.md §4, §6.3).
+ *
+ * Physics outcomes are results, never exceptions: sigma = 0 everywhere gives omegaH2 = NaN with the
+ * flag 'no_annihilation'; x_f < 3 adds 'relativistic_freezeout' (quantum statistics and the
+ * relativistic start make the result indicative only, relic.md §1.4, §2.5). Invalid input (mass not
+ * finite and positive, unknown knob, knob out of range) throws InvalidInputError naming the field.
+ *
+ * Validity: standard radiation-dominated cosmology with Saikawa-Shirai 2018 dof, kinetic equilibrium,
+ * no coannihilation, no Sommerfeld enhancement (relic.md §2.5).
+ * Accuracy: numerical error <~ 1e-3 at the default knobs against tight knobs
+ * (tests/bench/relic-bench.ts); physics systematics are larger (dof table 0.1-0.3%, C 0.6%,
+ * QCD-region dof ~10% for m ~ 1-10 GeV; relic.md §1.5, §5).
+ */
+import type { Annihilation } from '../annihilation-model.js';
+import { GEV2_TO_CM3S, OMEGA_YIELD_FACTOR, PLANCK_MASS_GEV } from '../constants.js';
+import { dofInto } from '../dof.js';
+import { InvalidInputError, type Issue } from '../issue.js';
+import type { DmKind } from '../model.js';
+import { solveFreezeOut } from './boltzmann.js';
+import { tabulateThermalAverage, thermalAverage, type ThermalAverageKnobs } from './thermal-average.js';
+
+export interface RelicResult {
+  /** Omega h^2 of all dark matter (chi + chibar for Dirac); NaN when there is no annihilation */
+  readonly omegaH2: number;
+  /** freeze-out x = m/T where Y = 1.5 Y_eq */
+  readonly xF: number;
+  /** <sigma v>(x_f) in cm^3/s (chi chibar for Dirac, chi chi for Majorana) */
+  readonly sigvFoCm3s: number;
+  readonly flags: readonly string[];
+}
+
+/** Numerical knobs of the relic stage (not physics inputs). */
+export interface RelicKnobs {
+  readonly laguerreNodes: number;
+  readonly tMax: number;
+  readonly quadRelTol: number;
+  readonly poleWindowWidths: number;
+  readonly tableNodesPerDecade: number;
+  readonly tableStartFraction: number;
+  readonly tableXMax: number;
+  readonly stepX: number;
+  readonly quasiStaticDeviation: number;
+  readonly equilibriumCut: number;
+  readonly tailRelTol: number;
+}
+
+export interface KnobSpec {
+  readonly name: keyof RelicKnobs;
+  readonly default: number;
+  readonly min: number;
+  readonly max: number;
+  readonly integer: boolean;
+  readonly doc: string;
+  readonly why: string;
+}
+
+/** Every numerical knob of the relic stage, declared once. Stored with each scan. */
+export const RELIC_KNOBS: readonly KnobSpec[] = Object.freeze([
+  {
+    name: 'laguerreNodes', default: 16, min: 4, max: 64, integer: true,
+    doc: 'nodes of the t^{1/2} e^{-t} Gauss-Laguerre rule for <sigma v>(x) when no pole or threshold lies in range',
+    why: 'the integrand over the weight is smooth (s-wave 1/beta absorbed by the weight); 16 nodes give <1e-7 for x >= 3',
+  },
+  {
+    name: 'tMax', default: 100, min: 30, max: 400, integer: false,
+    doc: 'upper cut of t = (sqrt(s) - 2m)/T in the adaptive thermal average',
+    why: 'the weight is e^{-t}: e^{-100} times polynomial growth is far below double precision',
+  },
+  {
+    name: 'quadRelTol', default: 1e-7, min: 1e-13, max: 1e-3, integer: false,
+    doc: 'relative tolerance of the adaptive Gauss-Kronrod pieces near poles and thresholds',
+    why: 'well below the 1e-3 solver error; tighter costs evaluations near narrow poles',
+  },
+  {
+    name: 'poleWindowWidths', default: 200, min: 5, max: 1e4, integer: false,
+    doc: 'half-width, in M Gamma units of s, of the tan-mapped window around each pole',
+    why: 'relic.md §2.4: N = 200 puts the Breit-Wigner wings outside the window below 1/N^2 of the peak',
+  },
+  {
+    name: 'tableNodesPerDecade', default: 8, min: 2, max: 200, integer: true,
+    doc: 'nodes per decade of x in the <sigma v>(x) table (cubic spline in ln-ln)',
+    why: 'smooth s/p-wave need ~4; resonances peak over ~1 unit of ln x; 8 keeps the table error <1e-3',
+  },
+  {
+    name: 'tableStartFraction', default: 0.5, min: 0.05, max: 0.9, integer: false,
+    doc: 'first table node at this fraction of the approximate x_f (but not below x = 1)',
+    why: 'the solver starts at x_s ~ x_f - 3; below the table start <sigma v> is evaluated directly',
+  },
+  {
+    name: 'tableXMax', default: 1e4, min: 100, max: 1e6, integer: false,
+    doc: 'last table node; <sigma v> is held constant beyond',
+    why: 'relic.md §2.4: beyond 1e4 the remaining depletion is ~x_f/x and <sigma v> is at its v -> 0 limit',
+  },
+  {
+    name: 'stepX', default: 0.25, min: 0.005, max: 2, integer: false,
+    doc: 'TR-BDF2 step in x through freeze-out',
+    why: 'relic.md §3.3: second order, ~4e-4 relative at 0.25; the analytic tail removes the late steps',
+  },
+  {
+    name: 'quasiStaticDeviation', default: 0.03, min: 1e-3, max: 0.3, integer: false,
+    doc: '(Y - Y_eq)/Y_eq at the quasi-static start',
+    why: 'relic.md §3.3: starting anywhere in 0.01-0.3 changes Omega h^2 by < 1e-5',
+  },
+  {
+    name: 'equilibriumCut', default: 1e-3, min: 1e-8, max: 0.05, integer: false,
+    doc: 'switch to the analytic tail once Y_eq < equilibriumCut * Y',
+    why: 'the neglected Y_eq^2 term is then ~1e-6 relative of the annihilation term',
+  },
+  {
+    name: 'tailRelTol', default: 1e-6, min: 1e-13, max: 1e-3, integer: false,
+    doc: 'relative tolerance of the tail integral int L dx (adaptive Gauss-Kronrod in 1/x)',
+    why: 'the tail carries 30-70% of the depletion; 1e-6 is far below the solver error (tighter tolerances chase the C1 joints of the interpolated dof)',
+  },
+] satisfies KnobSpec[]);
+
+/** Defaults of RELIC_KNOBS as one object. */
+export const DEFAULT_RELIC_KNOBS: RelicKnobs = Object.freeze(
+  Object.fromEntries(RELIC_KNOBS.map((k) => [k.name, k.default])) as unknown as RelicKnobs,
+);
+
+/** Merges overrides with the defaults, checking names and ranges. */
+export function resolveRelicKnobs(overrides: Partial<RelicKnobs> = {}): RelicKnobs {
+  const issues: Issue[] = [];
+  const known = new Set(RELIC_KNOBS.map((k) => k.name as string));
+  for (const name of Object.keys(overrides)) {
+    if (!known.has(name)) issues.push({ code: 'unknown_knob', path: `relicKnobs.${name}`, message: `unknown relic knob '${name}'`, seen: name, allowed: [...known].join(', ') });
+  }
+  for (const k of RELIC_KNOBS) {
+    const v = overrides[k.name];
+    if (v === undefined) continue;
+    if (typeof v !== 'number' || !(v >= k.min && v <= k.max) || (k.integer && !Number.isInteger(v))) {
+      issues.push({ code: 'knob_out_of_range', path: `relicKnobs.${k.name}`, message: `${k.name} must be ${k.integer ? 'an integer' : 'a number'} in [${k.min}, ${k.max}]`, seen: String(v), allowed: `[${k.min}, ${k.max}]` });
+    }
+  }
+  if (issues.length > 0) throw new InvalidInputError(issues);
+  return Object.freeze({ ...DEFAULT_RELIC_KNOBS, ...overrides });
+}
+
+/** Internal degrees of freedom of the tracked population (relic.md §4). */
+const G_CHI = 2;
+/** lowest x at which freeze-out is followed (Maxwell-Boltzmann is poor below, relic.md §1.4) */
+const X_START_MIN = 1;
+/** x_f below this is flagged 'relativistic_freezeout' */
+const X_RELATIVISTIC = 3;
+/** sqrt(45/8)/(2 pi^3) of relic.md eq. (3.1) */
+const XF_APPROX_PREFACTOR = Math.sqrt(45 / 8) / (2 * Math.PI ** 3);
+
+/** Relic abundance of one model point. */
+export function relicAbundance(ann: Annihilation, dm: DmKind, knobOverrides?: Partial<RelicKnobs>): RelicResult {
+  const knobs = resolveRelicKnobs(knobOverrides);
+  const m = ann.mChiGeV;
+  if (!(m > 0) || !Number.isFinite(m)) {
+    throw new InvalidInputError([{ code: 'out_of_range', path: 'm_chi', message: 'm_chi must be a finite positive mass in GeV', seen: String(m), allowed: '(0, inf)' }]);
+  }
+  if (dm !== 'dirac' && dm !== 'majorana') {
+    throw new InvalidInputError([{ code: 'invalid_enum', path: 'dm', message: "dm must be 'dirac' or 'majorana'", seen: String(dm), allowed: 'dirac, majorana' }]);
+  }
+  const tk: ThermalAverageKnobs = {
+    laguerreNodes: knobs.laguerreNodes,
+    tMax: knobs.tMax,
+    relTol: knobs.quadRelTol,
+    poleWindowWidths: knobs.poleWindowWidths,
+  };
+  const noAnnihilation = (): RelicResult => Object.freeze({ omegaH2: NaN, xF: NaN, sigvFoCm3s: 0, flags: Object.freeze(['no_annihilation']) });
+
+  const xFGuess = approximateFreezeOut(ann, tk);
+  if (Number.isNaN(xFGuess)) return noAnnihilation();
+  const xMin = Math.max(X_START_MIN, knobs.tableStartFraction * xFGuess);
+  const xMax = Math.max(knobs.tableXMax, 2 * xMin);
+  const nodes = Math.max(6, Math.ceil(knobs.tableNodesPerDecade * Math.log10(xMax / xMin)) + 1);
+  const table = tabulateThermalAverage(ann, xMin, xMax, nodes, tk);
+  if (table.allZero && thermalAverage(ann, X_START_MIN, tk) === 0) return noAnnihilation();
+
+  const solution = solveFreezeOut(
+    { mChiGeV: m, gChi: G_CHI, sigmaV: table.at, sigmaVConstantFromX: xMax, xStartMin: X_START_MIN, xFGuess },
+    knobs,
+  );
+  const populations = dm === 'dirac' ? 2 : 1;
+  const omegaH2 = populations * OMEGA_YIELD_FACTOR * m * solution.yieldToday;
+  const flags: string[] = [];
+  if (solution.xF < X_RELATIVISTIC) flags.push('relativistic_freezeout');
+  return Object.freeze({
+    omegaH2,
+    xF: solution.xF,
+    sigvFoCm3s: table.at(solution.xF) * GEV2_TO_CM3S,
+    flags: Object.freeze(flags),
+  });
+}
+
+/**
+ * Starting guess for x_f: fixed-point iteration of relic.md eq. (3.1) with c = 1/2 and the exact
+ * <sigma v> at the trial x. NaN when sigma vanishes at x = 20 and at x = 1 (no annihilation).
+ */
+function approximateFreezeOut(ann: Annihilation, tk: ThermalAverageKnobs): number {
+  const m = ann.mChiGeV;
+  const dof = new Float64Array(3);
+  const c = 0.5;
+  let x = 20;
+  for (let iter = 0; iter < 12; iter++) {
+    const sv = thermalAverage(ann, x, tk);
+    if (!(sv > 0)) {
+      if (x === X_START_MIN) return thermalAverage(ann, X_START_MIN, tk) > 0 ? X_START_MIN : NaN;
+      x = X_START_MIN;
+      continue;
+    }
+    dofInto(m / x, dof);
+    const gStarHalf = (dof[1]! / Math.sqrt(dof[0]!)) * (1 + dof[2]! / 3);
+    const arg = (c * (c + 2) * XF_APPROX_PREFACTOR * G_CHI * m * PLANCK_MASS_GEV * sv * gStarHalf) / (dof[1]! * Math.sqrt(x));
+    let next = Math.min(1e3, Math.max(X_START_MIN, Math.log(arg)));
+    if (iter >= 4) next = 0.5 * (x + next); // damp oscillations near resonances
+    if (Math.abs(next - x) < 0.05) return next;
+    x = next;
+  }
+  return x;
+}

@@ -1,0 +1,100 @@
+/**
+ * Relic-stage speed and numerical accuracy (physics/relic/relic.ts).
+ *
+ * Points: a mixed set of toy cross sections (constant s-wave, p-wave, s+p, Breit-Wigner poles just
+ * above and below 2m, narrow pole, a channel opening above threshold, masses 1 GeV-10 TeV), plus
+ * real simplified-model points from physics/annihilation.ts (scalar, pseudoscalar, vector, axial;
+ * on and off resonance, top threshold). Speed: relicAbundance calls per second on one core, each
+ * call including its own thermal-average table. Accuracy: max relative deviation of Omega h^2 from
+ * the same code at much tighter knobs.
+ */
+import type { Annihilation } from '../../physics/annihilation-model.js';
+import { buildAnnihilation } from '../../physics/annihilation.js';
+import { GEV2_TO_CM3S } from '../../physics/constants.js';
+import type { DmKind, ModelPoint } from '../../physics/model.js';
+import { relicAbundance, type RelicKnobs } from '../../physics/relic/relic.js';
+import { mediatorWidth } from '../../physics/widths.js';
+import { betaOf, pwave, resonance, toyAnnihilation } from '../relic/toy-annihilation.js';
+
+/** tight knobs: the reference for the accuracy figure */
+const TIGHT: Partial<RelicKnobs> = {
+  laguerreNodes: 48, quadRelTol: 1e-11, tableNodesPerDecade: 60, stepX: 0.01, equilibriumCut: 1e-7, tailRelTol: 1e-10, tableStartFraction: 0.3,
+};
+
+interface BenchPoint {
+  readonly name: string;
+  readonly ann: Annihilation;
+  readonly dm: DmKind;
+}
+
+function toyPoints(): BenchPoint[] {
+  const out: BenchPoint[] = [];
+  const sw = (m: number, svCm3s: number): Annihilation => {
+    const c = svCm3s / GEV2_TO_CM3S;
+    return toyAnnihilation({ mChiGeV: m, sigma: (s) => { const b = betaOf(m, s); return (c * (1 + b * b)) / (2 * b); } });
+  };
+  for (const m of [1, 10, 100, 1000, 1e4]) out.push({ name: `s-wave m=${m}`, ann: sw(m, 2.2e-26), dm: 'majorana' });
+  for (const m of [10, 100, 3000]) out.push({ name: `p-wave m=${m}`, ann: pwave(m, 2e-8), dm: 'majorana' });
+  out.push({ name: 's+p m=300', ann: toyAnnihilation({ mChiGeV: 300, sigma: (s) => { const b = betaOf(300, s); return (1e-9 + 8e-9 * b * b) / (2 * b); } }), dm: 'dirac' });
+  out.push({ name: 'pole M=2.1m G=1', ann: resonance(100, 6.77044e-8, 210, 1), dm: 'majorana' });
+  out.push({ name: 'pole M=2.01m G/M=1e-4', ann: resonance(500, 3e-7, 1005, 0.1005), dm: 'majorana' });
+  out.push({ name: 'pole M=2.5m G/M=0.1', ann: resonance(50, 5e-8, 125, 12.5), dm: 'dirac' });
+  out.push({ name: 'pole below threshold M=1.9m', ann: resonance(100, 3e-7, 190, 2), dm: 'majorana' });
+  const mf = 105;
+  out.push({
+    name: 'threshold at 1.05m',
+    ann: toyAnnihilation({ mChiGeV: 100, thresholdsGeV: [2 * mf], sigma: (s) => { const b = betaOf(100, s); const bf = Math.sqrt(Math.max(0, 1 - (4 * mf * mf) / s)); return (2e-10 + 3e-8 * bf) / (2 * b); } }),
+    dm: 'majorana',
+  });
+  return out;
+}
+
+function realPoints(): BenchPoint[] {
+  const base: Omit<ModelPoint, 'mediator' | 'm_chi' | 'm_med'> = { dm: 'dirac', g_chi: 1, g_q: 0.25, g_l: 0, width_med: null };
+  const specs: [ModelPoint['mediator'], number, number, DmKind][] = [
+    ['vector', 100, 1000, 'dirac'], ['vector', 480, 1000, 'dirac'], ['axial', 300, 1500, 'majorana'],
+    ['axial', 200, 100, 'dirac'], ['scalar', 150, 500, 'dirac'], ['pseudoscalar', 200, 395, 'majorana'],
+    ['scalar', 60, 1000, 'majorana'], ['vector', 1000, 2100, 'dirac'],
+  ];
+  return specs.map(([mediator, mChi, mMed, dm]) => {
+    const point: ModelPoint = { ...base, mediator, m_chi: mChi, m_med: mMed, dm, g_q: mediator === 'scalar' || mediator === 'pseudoscalar' ? 1 : 0.25 };
+    const width = mediatorWidth(point).totalGeV;
+    return { name: `${mediator} ${dm} m=${mChi} M=${mMed}`, ann: buildAnnihilation(point, width), dm };
+  });
+}
+
+export async function benchRelic(): Promise<{ pointsPerSecond: number; maxRelError: number; lines: string[] }> {
+  const points = [...toyPoints(), ...realPoints()];
+  const lines: string[] = [];
+  let maxRelError = 0;
+  for (const p of points) {
+    const fast = relicAbundance(p.ann, p.dm);
+    const tight = relicAbundance(p.ann, p.dm, TIGHT);
+    const err = Math.abs(fast.omegaH2 / tight.omegaH2 - 1);
+    maxRelError = Math.max(maxRelError, err);
+    lines.push(`  ${p.name.padEnd(40)} Omega h^2 ${fast.omegaH2.toPrecision(6)}  x_f ${fast.xF.toFixed(2)}  rel.err vs tight ${err.toExponential(1)}${fast.flags.length ? `  [${fast.flags.join(',')}]` : ''}`);
+  }
+  // warm-up, then timing over repeated passes of the whole mixed set
+  for (let i = 0; i < 3; i++) for (const p of points) relicAbundance(p.ann, p.dm);
+  const passes = 20;
+  const t0 = performance.now();
+  for (let i = 0; i < passes; i++) for (const p of points) relicAbundance(p.ann, p.dm);
+  const seconds = (performance.now() - t0) / 1000;
+  const pointsPerSecond = (passes * points.length) / seconds;
+  const perKind = (subset: BenchPoint[]): number => {
+    const t = performance.now();
+    for (let i = 0; i < passes; i++) for (const p of subset) relicAbundance(p.ann, p.dm);
+    return (performance.now() - t) * 1000 / (passes * subset.length);
+  };
+  const toys = toyPoints();
+  lines.unshift(
+    `relic: ${points.length} mixed points, ${pointsPerSecond.toFixed(0)} points/s on one core, max |Omega/Omega_tight - 1| = ${maxRelError.toExponential(2)}`,
+    `  per point: s-wave ${perKind(toys.slice(0, 5)).toFixed(0)} us, p-wave ${perKind(toys.slice(5, 8)).toFixed(0)} us, poles/threshold ${perKind(toys.slice(9)).toFixed(0)} us, real models ${perKind(realPoints()).toFixed(0)} us`,
+  );
+  return { pointsPerSecond, maxRelError, lines };
+}
+
+if (import.meta.url === `file://${process.argv[1]}`) {
+  const r = await benchRelic();
+  process.stdout.write(`${r.lines.join('\n')}\n`);
+}

@@ -1,0 +1,123 @@
+/**
+ * Surviving points of a judged constraint set, optionally filtered by a `--where` expression, and
+ * their output as an aligned table, CSV or JSON.
+ *
+ * `--where` is an expression of the sandbox (scheduler/expressions.ts) over the numeric point
+ * columns. It is compiled once and registered as a deterministic SQL function that SQLite calls only
+ * with the columns the expression reads, inside the query that walks the verdicts in point order.
+ * Why not translate it to SQL: SQL and mathjs differ on NULL versus NaN (`not (x < 1)` is NULL in SQL
+ * but true in JS), on division by zero and on integer division, so a filter would mean something
+ * different from the same text in a constraint. Why not evaluate on rows streamed into JS: every
+ * column of every surviving point would cross into JS, where only the filter's inputs need to; the
+ * SQL function keeps the scan inside SQLite and stops at --limit.
+ */
+import type { Database } from 'better-sqlite3';
+import { InvalidInputError } from '../physics/issue.js';
+import { compileExpression } from './expressions.js';
+import { pointColumns } from './constraints/scan-context.js';
+
+export const OUTPUT_FORMATS = ['table', 'csv', 'json'] as const;
+export type OutputFormat = (typeof OUTPUT_FORMATS)[number];
+
+export interface SurvivorQuery {
+  readonly scanId: number | string;
+  readonly set: string;
+  /** filter expression over numeric point columns */
+  readonly where?: string;
+  /** most rows returned; undefined for all */
+  readonly limit?: number;
+}
+
+const quote = (column: string): string => `"${column.replace(/"/g, '""')}"`;
+
+/** Point columns that hold text and so cannot appear in a --where expression. */
+const TEXT_COLUMNS = new Set(['dm', 'mediator', 'flags']);
+
+/** The columns a --where expression may read. */
+export function whereNames(db: Database): string[] {
+  return pointColumns(db).filter((c) => c !== 'scan_id' && !TEXT_COLUMNS.has(c));
+}
+
+/** Columns of the rows `survivorRows` returns (every point column except scan_id). */
+export function outputColumns(db: Database): string[] {
+  return pointColumns(db).filter((c) => c !== 'scan_id');
+}
+
+/** Iterates the surviving points (arrays in `outputColumns` order), in point-id order. */
+export function survivorRows(db: Database, q: SurvivorQuery): { columns: string[]; rows: IterableIterator<unknown[]> } {
+  const columns = outputColumns(db);
+  let filter = '';
+  if (q.where !== undefined) {
+    const compiled = compileExpression(q.where, whereNames(db), '--where', { expect: 'boolean' });
+    if (!compiled.evaluate) throw new InvalidInputError(compiled.issues);
+    const evaluate = compiled.evaluate;
+    const names = compiled.symbols;
+    const scope: Record<string, number> = {};
+    db.function('darksieve_where', { deterministic: true, varargs: true }, (...args: unknown[]) => {
+      for (let i = 0; i < names.length; i++) {
+        const x = args[i];
+        scope[names[i]!] = typeof x === 'number' ? x : NaN;
+      }
+      return evaluate(scope) === true ? 1 : 0;
+    });
+    filter = ` AND darksieve_where(${names.map((n) => `p.${quote(n)}`).join(', ')}) = 1`;
+  }
+  const limit = q.limit !== undefined ? ' LIMIT ?' : '';
+  const sql = `SELECT ${columns.map((c) => `p.${quote(c)}`).join(', ')}
+    FROM verdicts v JOIN points p ON p.scan_id = v.scan_id AND p.point_id = v.point_id
+    WHERE v.scan_id = ? AND v.constraint_set = ? AND v.survives = 1${filter}
+    ORDER BY v.point_id${limit}`;
+  const stmt = db.prepare(sql).raw(true);
+  const params: unknown[] = [q.scanId, q.set];
+  if (q.limit !== undefined) params.push(q.limit);
+  return { columns, rows: stmt.iterate(...params) as IterableIterator<unknown[]> };
+}
+
+function csvField(v: unknown): string {
+  if (v === null || v === undefined) return '';
+  const s = String(v);
+  return /[",\n\r]/.test(s) ? `"${s.replace(/"/g, '""')}"` : s;
+}
+
+function tableField(v: unknown): string {
+  if (v === null || v === undefined) return '-';
+  if (typeof v === 'number') return String(Number(v.toPrecision(5)));
+  return String(v);
+}
+
+/**
+ * Writes the rows in the chosen format through `write` and returns how many were written. CSV and
+ * JSON keep full double precision (they are for other programs); the table rounds to 5 digits.
+ */
+export function writeRows(columns: readonly string[], rows: Iterable<unknown[]>, format: OutputFormat, write: (text: string) => void): number {
+  let n = 0;
+  if (format === 'csv') {
+    write(`${columns.join(',')}\n`);
+    for (const r of rows) {
+      write(`${r.map(csvField).join(',')}\n`);
+      n++;
+    }
+    return n;
+  }
+  if (format === 'json') {
+    write('[');
+    for (const r of rows) {
+      const obj: Record<string, unknown> = {};
+      columns.forEach((c, i) => {
+        obj[c] = r[i] ?? null;
+      });
+      write(`${n === 0 ? '\n' : ',\n'}${JSON.stringify(obj)}`);
+      n++;
+    }
+    write(n === 0 ? ']\n' : '\n]\n');
+    return n;
+  }
+  const cells = [columns.slice()];
+  for (const r of rows) {
+    cells.push(r.map(tableField));
+    n++;
+  }
+  const widths = columns.map((_, i) => Math.max(...cells.map((row) => row[i]!.length)));
+  for (const row of cells) write(`${row.map((c, i) => c.padStart(widths[i]!)).join('  ')}\n`);
+  return n;
+}

@@ -47,6 +47,7 @@ export interface RelicResult {
 /** Numerical knobs of the relic stage (not physics inputs). */
 export interface RelicKnobs {
   readonly laguerreNodes: number;
+  readonly legendreNodes: number;
   readonly tMax: number;
   readonly quadRelTol: number;
   readonly poleWindowWidths: number;
@@ -77,12 +78,17 @@ export const RELIC_KNOBS: readonly KnobSpec[] = Object.freeze([
     why: 'the integrand over the weight is smooth (s-wave 1/beta absorbed by the weight); 16 nodes give <1e-7 for x >= 3',
   },
   {
-    name: 'tMax', default: 100, min: 30, max: 400, integer: false,
+    name: 'legendreNodes', default: 24, min: 4, max: 256, integer: true,
+    doc: 'Gauss-Legendre nodes per piece of the thermal average between thresholds and pole windows',
+    why: 'after the square-root map each piece is smooth; 24 nodes reach ~1e-8 on pieces up to t = 60',
+  },
+  {
+    name: 'tMax', default: 60, min: 30, max: 400, integer: false,
     doc: 'upper cut of t = (sqrt(s) - 2m)/T in the adaptive thermal average',
     why: 'the weight is e^{-t}: e^{-100} times polynomial growth is far below double precision',
   },
   {
-    name: 'quadRelTol', default: 1e-7, min: 1e-13, max: 1e-3, integer: false,
+    name: 'quadRelTol', default: 1e-5, min: 1e-13, max: 1e-3, integer: false,
     doc: 'relative tolerance of the adaptive Gauss-Kronrod pieces near poles and thresholds',
     why: 'well below the 1e-3 solver error; tighter costs evaluations near narrow poles',
   },
@@ -172,6 +178,7 @@ export function relicAbundance(ann: Annihilation, dm: DmKind, knobOverrides?: Pa
   }
   const tk: ThermalAverageKnobs = {
     laguerreNodes: knobs.laguerreNodes,
+    legendreNodes: knobs.legendreNodes,
     tMax: knobs.tMax,
     relTol: knobs.quadRelTol,
     poleWindowWidths: knobs.poleWindowWidths,

@@ -21,8 +21,11 @@
  *    [0, tMax] is cut at every threshold and at the ends of a window |s - M^2| < poleWindowWidths M
  *    Gamma around every pole. Inside a window s = M^2 + M Gamma tan(theta) absorbs the Breit-Wigner
  *    peak (smooth integrand in theta for any Gamma); every piece that starts at a square-root edge
- *    (t = 0 or a threshold) is mapped by u -> a + u^2 to remove the edge. Each piece is integrated by
- *    adaptive Gauss-Kronrod (physics/numerics/quadrature.ts) to relTol.
+ *    (t = 0 or a threshold) is mapped by u -> a + u^2 to remove the edge. Pieces inside a pole
+ *    window, and the pieces bordering one (Breit-Wigner wings), are integrated by adaptive
+ *    Gauss-Kronrod (physics/numerics/quadrature.ts) to relTol (the e^{-t} factor can be sharp in
+ *    theta at large x); the others are smooth after the map and take a fixed legendreNodes-point
+ *    Gauss-Legendre rule.
  *    The range above tMax is dropped (its weight is < e^{-tMax} times polynomial growth).
  *  - Table: <sigma v> is computed once per model point on nodes uniform in ln x between xMin and
  *    xMax and interpolated by a cubic spline of ln<sigma v> against ln x (not-a-knot ends). Beyond
@@ -36,12 +39,14 @@
  */
 import type { Annihilation, Pole } from '../annihilation-model.js';
 import { besselK1Scaled, besselK2Scaled } from '../numerics/bessel.js';
-import { gaussLaguerre, integrate } from '../numerics/quadrature.js';
+import { gaussLaguerre, gaussLegendre, integrate } from '../numerics/quadrature.js';
 
 /** Numerical knobs of the thermal average (declared with docs in physics/relic/relic.ts). */
 export interface ThermalAverageKnobs {
   /** Gauss-Laguerre (alpha = 1/2) nodes for the smooth case */
   readonly laguerreNodes: number;
+  /** Gauss-Legendre nodes per piece away from poles (after the square-root map) */
+  readonly legendreNodes: number;
   /** upper cut of the t = (sqrt(s) - 2m)/T integral in the adaptive case */
   readonly tMax: number;
   /** relative tolerance of the adaptive Gauss-Kronrod pieces */
@@ -58,6 +63,8 @@ interface Piece {
   readonly sqrtEdge: boolean;
   /** the pole whose tan-window contains the piece, or null */
   readonly pole: Pole | null;
+  /** the piece borders a pole window: the Breit-Wigner wing makes it adaptive */
+  readonly bordersPole: boolean;
 }
 
 /** Thermal average at one x, GeV^-2. */
@@ -76,7 +83,7 @@ export function thermalAverage(ann: Annihilation, x: number, knobs: ThermalAvera
     return sigma * (t / x) * (1 + 0.5 * r) * (1 + r) * (1 + r) * besselK1Scaled(2 * x + t) * Math.exp(-t);
   };
   let total = 0;
-  for (const p of pieces) total += integratePiece(f, p, m, x, knobs.relTol);
+  for (const p of pieces) total += integratePiece(f, p, m, x, knobs);
   return norm * total;
 }
 
@@ -137,18 +144,31 @@ function adaptivePieces(ann: Annihilation, x: number, knobs: ThermalAverageKnobs
     for (const w of windows) {
       if (mid > w.lo && mid < w.hi && (pole === null || w.pole.widthGeV * w.pole.massGeV < pole.widthGeV * pole.massGeV)) pole = w.pole;
     }
-    pieces.push({ a, b, sqrtEdge: edges.has(a), pole });
+    const bordersPole = pole === null && windows.some((w) => w.lo === b || w.hi === a);
+    pieces.push({ a, b, sqrtEdge: edges.has(a), pole, bordersPole });
   }
   return pieces;
 }
 
 /** Integral of f over one piece, with the tan map inside pole windows and u^2 maps at edges. */
-function integratePiece(f: (t: number) => number, p: Piece, m: number, x: number, relTol: number): number {
-  const options = { relTol, maxIntervals: 400 };
-  if (p.pole === null) {
+function integratePiece(f: (t: number) => number, p: Piece, m: number, x: number, knobs: ThermalAverageKnobs): number {
+  const options = { relTol: knobs.relTol, maxIntervals: 400 };
+  if (p.pole === null && p.bordersPole) {
     if (!p.sqrtEdge) return integrate(f, p.a, p.b, options).value;
-    // t = a + u^2, dt = 2u du
     return integrate((u) => 2 * u * f(p.a + u * u), 0, Math.sqrt(p.b - p.a), options).value;
+  }
+  if (p.pole === null) {
+    // smooth after the square-root map: fixed Gauss-Legendre
+    const rule = gaussLegendre(knobs.legendreNodes);
+    const uMax = p.sqrtEdge ? Math.sqrt(p.b - p.a) : p.b - p.a;
+    const half = 0.5 * uMax;
+    let sum = 0;
+    for (let i = 0; i < rule.nodes.length; i++) {
+      const u = half * (1 + rule.nodes[i]!);
+      // sqrt edge: t = a + u^2, dt = 2u du
+      sum += rule.weights[i]! * (p.sqrtEdge ? 2 * u * f(p.a + u * u) : f(p.a + u));
+    }
+    return half * sum;
   }
   const mm = p.pole.massGeV;
   const mg = mm * p.pole.widthGeV;

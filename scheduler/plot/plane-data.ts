@@ -61,8 +61,8 @@ export interface Cell {
   readonly y2: number;
   /** points in the cell */
   readonly n: number;
+  /** points in the cell that survive the constraint set (0 when the scan is not judged) */
   readonly nSurvive: number;
-  readonly nJudged: number;
   /** colour value: aggregate over the cell's survivors when it has any, else over all its points */
   readonly c: number | null;
 }
@@ -101,16 +101,45 @@ function sqlParts(req: PlaneRequest): SqlParts {
   };
 }
 
-function columnStats(view: LedgerView, req: PlaneRequest, parts: SqlParts, column: string): ColumnStats {
-  const c = `p.${quoteId(column)}`;
-  const filter = req.survivorsOnly ? ` AND ${parts.survive} = 1` : '';
+interface PlaneStats {
+  readonly total: number;
+  readonly x: ColumnStats;
+  readonly y: ColumnStats;
+  readonly c: ColumnStats | null;
+  /** points with x and y present, split by which of them is > 0 (for the drawn count per scale) */
+  readonly both: { any: number; xPos: number; yPos: number; pos: number };
+}
+
+/**
+ * Range statistics of x, y and colour and the counts of drawable points, in one pass over the
+ * scan (the verdicts join only when --survivors-only needs it): on 10^6 points each pass costs
+ * about a second here, so passes are what this module economises.
+ */
+function planeStats(view: LedgerView, req: PlaneRequest, parts: SqlParts): PlaneStats {
+  const cols = { x: `p.${quoteId(req.x)}`, y: `p.${quoteId(req.y)}`, c: req.color ? `p.${quoteId(req.color)}` : 'NULL' };
+  const stat = (k: 'x' | 'y' | 'c'): string => {
+    const c = cols[k];
+    return `COUNT(${c}) AS ${k}Count, MIN(${c}) AS ${k}Min, MAX(${c}) AS ${k}Max,
+            MIN(CASE WHEN ${c} > 0 THEN ${c} END) AS ${k}MinPositive, TOTAL(${c} <= 0) AS ${k}NonPositive`;
+  };
+  const from = req.survivorsOnly ? parts.from : 'points p';
+  const params = req.survivorsOnly ? [...parts.params, req.scanId] : [req.scanId];
   const row = view.db.prepare(
-    `SELECT COUNT(${c}) AS count, MIN(${c}) AS min, MAX(${c}) AS max,
-            MIN(CASE WHEN ${c} > 0 THEN ${c} END) AS minPositive,
-            SUM(CASE WHEN ${c} <= 0 THEN 1 ELSE 0 END) AS nonPositive
-       FROM ${parts.from} WHERE p.scan_id = ?${filter}`,
-  ).get(...parts.params, req.scanId) as { count: number; min: number | null; max: number | null; minPositive: number | null; nonPositive: number | null };
-  return { ...row, nonPositive: row.nonPositive ?? 0 };
+    `SELECT COUNT(*) AS total, ${stat('x')}, ${stat('y')}, ${stat('c')},
+            TOTAL(${cols.x} IS NOT NULL AND ${cols.y} IS NOT NULL) AS bothAny,
+            TOTAL(${cols.x} > 0 AND ${cols.y} IS NOT NULL) AS bothXPos,
+            TOTAL(${cols.x} IS NOT NULL AND ${cols.y} > 0) AS bothYPos,
+            TOTAL(${cols.x} > 0 AND ${cols.y} > 0) AS bothPos
+       FROM ${from} WHERE p.scan_id = ?${req.survivorsOnly ? ` AND ${parts.survive} = 1` : ''}`,
+  ).get(...params) as Record<string, number | null>;
+  const pick = (k: string): ColumnStats => ({
+    count: row[`${k}Count`] ?? 0, min: row[`${k}Min`] ?? null, max: row[`${k}Max`] ?? null,
+    minPositive: row[`${k}MinPositive`] ?? null, nonPositive: row[`${k}NonPositive`] ?? 0,
+  });
+  return {
+    total: row.total ?? 0, x: pick('x'), y: pick('y'), c: req.color ? pick('c') : null,
+    both: { any: row.bothAny ?? 0, xPos: row.bothXPos ?? 0, yPos: row.bothYPos ?? 0, pos: row.bothPos ?? 0 },
+  };
 }
 
 function statusOf(survives: number | null): PointStatus {
@@ -118,77 +147,81 @@ function statusOf(survives: number | null): PointStatus {
   return survives ? 'survives' : 'excluded';
 }
 
+interface AggregateRow {
+  n: number;
+  nSurvive: number;
+  cSurvive: number | null;
+  cAll: number | null;
+}
+
 /** Gathers the data of one plane; throws nothing for an empty plane (the picture says so). */
 export function readPlane(view: LedgerView, req: PlaneRequest): PlaneData {
   const parts = sqlParts(req);
-  const xStats = columnStats(view, req, parts, req.x);
-  const yStats = columnStats(view, req, parts, req.y);
-  const xType = chooseScale(xStats, req.xScale);
-  const yType = chooseScale(yStats, req.yScale);
-  const xDomain = paddedDomain(xStats, xType) ?? [0, 1];
-  const yDomain = paddedDomain(yStats, yType) ?? [0, 1];
+  const stats = planeStats(view, req, parts);
+  const xType = chooseScale(stats.x, req.xScale);
+  const yType = chooseScale(stats.y, req.yScale);
+  const xDomain = paddedDomain(stats.x, xType) ?? [0, 1];
+  const yDomain = paddedDomain(stats.y, yType) ?? [0, 1];
   const x: AxisInfo = { column: req.x, type: xType, domain: xDomain };
   const y: AxisInfo = { column: req.y, type: yType, domain: yDomain };
   let color: AxisInfo | null = null;
-  if (req.color !== undefined) {
-    const cStats = columnStats(view, req, parts, req.color);
-    const cType = chooseScale(cStats, req.colorScale);
-    const raw = cType === 'log' ? [cStats.minPositive, cStats.max] : [cStats.min, cStats.max];
-    const domain: [number, number] = raw[0] !== null && raw[1] !== null && raw[0] !== undefined && raw[1] !== undefined
-      ? [raw[0], raw[1] > raw[0] ? raw[1] : raw[0] * (cType === 'log' ? 10 : 1) + (cType === 'log' ? 0 : 1)]
-      : [1, 10];
+  if (req.color !== undefined && stats.c) {
+    const cType = chooseScale(stats.c, req.colorScale);
+    const lo = cType === 'log' ? stats.c.minPositive : stats.c.min;
+    const hi = stats.c.max;
+    const domain: [number, number] = lo === null || hi === null ? [1, 10]
+      : hi > lo ? [lo, hi] : cType === 'log' ? [lo / 2, lo * 2] : [lo - 1, lo + 1];
     color = { column: req.color, type: cType, domain };
   }
+  const drawn = xType === 'log'
+    ? (yType === 'log' ? stats.both.pos : stats.both.xPos)
+    : (yType === 'log' ? stats.both.yPos : stats.both.any);
 
   const xc = `p.${quoteId(req.x)}`;
   const yc = `p.${quoteId(req.y)}`;
   const conds = [`p.scan_id = ?`, `${xc} IS NOT NULL`, `${yc} IS NOT NULL`];
   if (xType === 'log') conds.push(`${xc} > 0`);
   if (yType === 'log') conds.push(`${yc} > 0`);
-  // the grid is recognised on all points, so that --survivors-only keeps the grid's cells
+  // the grid is recognised on all points, so that --survivors-only keeps the grid's layout
   const gridWhere = conds.join(' AND ');
   if (req.survivorsOnly) conds.push(`${parts.survive} = 1`);
   const where = conds.join(' AND ');
   const params = [...parts.params, req.scanId];
-
-  const totalRow = view.db.prepare(
-    `SELECT COUNT(*) AS n FROM ${parts.from} WHERE p.scan_id = ?${req.survivorsOnly ? ` AND ${parts.survive} = 1` : ''}`,
-  ).get(...params) as { n: number };
-  const drawn = (view.db.prepare(`SELECT COUNT(*) AS n FROM ${parts.from} WHERE ${where}`).get(...params) as { n: number }).n;
-  const base = {
-    x, y, color, judged: req.constraintSet !== null, drawnPoints: drawn, omittedPoints: totalRow.n - drawn,
-  };
+  const base = { x, y, color, judged: req.constraintSet !== null, drawnPoints: drawn, omittedPoints: stats.total - drawn };
 
   const cExpr = colorExpr(req.color, color?.type);
-  const grid = detectGrid(view, parts, gridWhere, params, xc, yc);
-  if (grid) {
+  const aggregates = `COUNT(*) AS n, TOTAL(${parts.survive} = 1) AS nSurvive,
+              AVG(CASE WHEN ${parts.survive} = 1 THEN ${cExpr} END) AS cSurvive, AVG(${cExpr}) AS cAll`;
+  const cellColor = (r: AggregateRow): number | null => colorValue(r.nSurvive > 0 ? r.cSurvive : r.cAll, color?.type);
+
+  // with --survivors-only the drawn count is the survivors', which says nothing about the grid
+  const gridAxes = gridCandidate(view, parts, gridWhere, params, xc, yc, req.survivorsOnly ? Infinity : drawn);
+  if (gridAxes) {
     const rows = view.db.prepare(
-      `SELECT ${xc} AS x, ${yc} AS y, COUNT(*) AS n,
-              SUM(CASE WHEN ${parts.survive} = 1 THEN 1 ELSE 0 END) AS nSurvive,
-              COUNT(${parts.survive}) AS nJudged,
-              AVG(CASE WHEN ${parts.survive} = 1 THEN ${cExpr} END) AS cSurvive, AVG(${cExpr}) AS cAll
-         FROM ${parts.from} WHERE ${where} GROUP BY ${xc}, ${yc}`,
-    ).all(...params) as { x: number; y: number; n: number; nSurvive: number; nJudged: number; cSurvive: number | null; cAll: number | null }[];
-    const xEdges = cellEdges(grid.xs, xType);
-    const yEdges = cellEdges(grid.ys, yType);
-    const xIndex = new Map(grid.xs.map((v, i) => [v, i]));
-    const yIndex = new Map(grid.ys.map((v, i) => [v, i]));
-    let perCell = 0;
-    const cells: Cell[] = rows.map((r) => {
-      const i = xIndex.get(r.x) as number;
-      const j = yIndex.get(r.y) as number;
-      perCell = Math.max(perCell, r.n);
+      `SELECT ${xc} AS x, ${yc} AS y, ${aggregates} FROM ${parts.from} WHERE ${gridWhere} GROUP BY ${xc}, ${yc}`,
+    ).all(...params) as (AggregateRow & { x: number; y: number })[];
+    // every (x, y) pair present: a grid; otherwise the data only looked like one (rare) and are binned
+    if (rows.length === gridAxes.xs.length * gridAxes.ys.length) {
+      const xEdges = cellEdges(gridAxes.xs, xType);
+      const yEdges = cellEdges(gridAxes.ys, yType);
+      const xIndex = new Map(gridAxes.xs.map((v, i) => [v, i]));
+      const yIndex = new Map(gridAxes.ys.map((v, i) => [v, i]));
+      const perCell = Math.max(...rows.map((r) => r.n));
+      const cells: Cell[] = rows
+        .filter((r) => !req.survivorsOnly || r.nSurvive > 0)
+        .map((r) => {
+          const i = xIndex.get(r.x) as number;
+          const j = yIndex.get(r.y) as number;
+          const kept = req.survivorsOnly ? { n: r.nSurvive, nSurvive: r.nSurvive, c: colorValue(r.cSurvive, color?.type) }
+            : { n: r.n, nSurvive: r.nSurvive, c: cellColor(r) };
+          return { x1: xEdges[i] as number, x2: xEdges[i + 1] as number, y1: yEdges[j] as number, y2: yEdges[j + 1] as number, ...kept };
+        });
       return {
-        x1: xEdges[i] as number, x2: xEdges[i + 1] as number, y1: yEdges[j] as number, y2: yEdges[j + 1] as number,
-        n: r.n, nSurvive: r.nSurvive, nJudged: r.nJudged,
-        c: colorValue(r.nSurvive > 0 ? r.cSurvive : r.cAll, color?.type),
+        ...base, mode: 'grid', points: [], cells, gridX: gridAxes.xs, gridY: gridAxes.ys, pointsPerCell: perCell,
+        x: { ...x, domain: [xEdges[0] as number, xEdges[xEdges.length - 1] as number] },
+        y: { ...y, domain: [yEdges[0] as number, yEdges[yEdges.length - 1] as number] },
       };
-    });
-    return {
-      ...base, mode: 'grid', points: [], cells, gridX: grid.xs, gridY: grid.ys, pointsPerCell: perCell,
-      x: { ...x, domain: [xEdges[0] as number, xEdges[xEdges.length - 1] as number] },
-      y: { ...y, domain: [yEdges[0] as number, yEdges[yEdges.length - 1] as number] },
-    };
+    }
   }
 
   if (drawn <= SCATTER_MAX_POINTS) {
@@ -199,7 +232,7 @@ export function readPlane(view: LedgerView, req: PlaneRequest): PlaneData {
     const points = rows.map(([px, py, pc, ps]) => ({
       x: px, y: py, c: pc === null || (color?.type === 'log' && pc <= 0) ? null : pc, status: statusOf(ps),
     }));
-    return { ...base, mode: 'scatter', points, cells: [], gridX: [], gridY: [], pointsPerCell: 0 };
+    return { ...base, drawnPoints: points.length, mode: 'scatter', points, cells: [], gridX: [], gridY: [], pointsPerCell: 0 };
   }
 
   const [ux0, ux1] = xDomain.map((v) => toScaleSpace(xType, v)) as [number, number];
@@ -210,18 +243,13 @@ export function readPlane(view: LedgerView, req: PlaneRequest): PlaneData {
   const uy = yType === 'log' ? `log10(${yc})` : yc;
   const rows = view.db.prepare(
     `SELECT MIN(${BINS_X - 1}, CAST((${ux} - ?) / ? AS INTEGER)) AS i,
-            MIN(${BINS_Y - 1}, CAST((${uy} - ?) / ? AS INTEGER)) AS j,
-            COUNT(*) AS n,
-            SUM(CASE WHEN ${parts.survive} = 1 THEN 1 ELSE 0 END) AS nSurvive,
-            COUNT(${parts.survive}) AS nJudged,
-            AVG(CASE WHEN ${parts.survive} = 1 THEN ${cExpr} END) AS cSurvive, AVG(${cExpr}) AS cAll
+            MIN(${BINS_Y - 1}, CAST((${uy} - ?) / ? AS INTEGER)) AS j, ${aggregates}
        FROM ${parts.from} WHERE ${where} GROUP BY i, j`,
-  ).all(ux0, dx, uy0, dy, ...params) as { i: number; j: number; n: number; nSurvive: number; nJudged: number; cSurvive: number | null; cAll: number | null }[];
+  ).all(ux0, dx, uy0, dy, ...params) as (AggregateRow & { i: number; j: number })[];
   const cells: Cell[] = rows.map((r) => ({
     x1: fromScaleSpace(xType, ux0 + r.i * dx), x2: fromScaleSpace(xType, ux0 + (r.i + 1) * dx),
     y1: fromScaleSpace(yType, uy0 + r.j * dy), y2: fromScaleSpace(yType, uy0 + (r.j + 1) * dy),
-    n: r.n, nSurvive: r.nSurvive, nJudged: r.nJudged,
-    c: colorValue(r.nSurvive > 0 ? r.cSurvive : r.cAll, color?.type),
+    n: r.n, nSurvive: r.nSurvive, c: cellColor(r),
   }));
   return { ...base, mode: 'binned', points: [], cells, gridX: [], gridY: [], pointsPerCell: 0 };
 }
@@ -238,21 +266,22 @@ function colorValue(aggregate: number | null, type: ScaleType | undefined): numb
   return type === 'log' ? 10 ** aggregate : aggregate;
 }
 
-function detectGrid(
-  view: LedgerView, parts: SqlParts, where: string, params: unknown[], xc: string, yc: string,
+/**
+ * Axis values when the plane may be a grid: few distinct x and y values (DISTINCT ... LIMIT stops
+ * early on scattered data) whose combinations do not outnumber the points. Whether every pair
+ * occurs is checked by the caller on the grouped rows it needs anyway.
+ */
+function gridCandidate(
+  view: LedgerView, parts: SqlParts, where: string, params: unknown[], xc: string, yc: string, drawn: number,
 ): { xs: number[]; ys: number[] } | null {
-  const all = (view.db.prepare(`SELECT COUNT(*) AS n FROM ${parts.from} WHERE ${where}`).get(...params) as { n: number }).n;
-  if (all < 4) return null;
+  if (drawn < 4) return null;
   const distinct = (col: string): number[] =>
-    (view.db.prepare(`SELECT DISTINCT ${col} AS v FROM ${parts.from} WHERE ${where} LIMIT ${GRID_MAX_VALUES + 1}`)
-      .raw().all(...params) as [number][]).map((r) => r[0]);
+    (view.db.prepare(`SELECT DISTINCT ${col} AS v FROM points p WHERE ${where} LIMIT ${GRID_MAX_VALUES + 1}`)
+      .raw().all(...params.slice(parts.params.length)) as [number][]).map((r) => r[0]);
   const xs = distinct(xc);
   if (xs.length < 2 || xs.length > GRID_MAX_VALUES) return null;
   const ys = distinct(yc);
-  if (ys.length < 2 || ys.length > GRID_MAX_VALUES || xs.length * ys.length > all) return null;
-  const pairs = (view.db.prepare(`SELECT COUNT(*) AS n FROM (SELECT DISTINCT ${xc}, ${yc} FROM ${parts.from} WHERE ${where})`)
-    .get(...params) as { n: number }).n;
-  if (pairs !== xs.length * ys.length) return null;
+  if (ys.length < 2 || ys.length > GRID_MAX_VALUES || xs.length * ys.length > drawn) return null;
   return { xs: xs.sort((a, b) => a - b), ys: ys.sort((a, b) => a - b) };
 }
 

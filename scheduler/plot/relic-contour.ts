@@ -27,13 +27,16 @@ export function relicContour(view: LedgerView, scanId: number, data: PlaneData):
   if (data.mode !== 'grid') return { overlay: null, note: null };
   if (data.x.column === RELIC_COLUMN || data.y.column === RELIC_COLUMN) return { overlay: null, note: null };
   if (!view.numericColumns(scanId).includes(RELIC_COLUMN)) return { overlay: null, note: null };
+  if (data.pointsPerCell > 1) {
+    return { overlay: null, note: `relic line not drawn: ${data.pointsPerCell} points share each cell (other axes vary)` };
+  }
   const xc = quoteId(data.x.column);
   const yc = quoteId(data.y.column);
   const rows = view.db.prepare(
     `SELECT ${xc} AS x, ${yc} AS y, COUNT(*) AS n, MIN(${quoteId(RELIC_COLUMN)}) AS o
        FROM points WHERE scan_id = ? AND ${xc} IS NOT NULL AND ${yc} IS NOT NULL GROUP BY ${xc}, ${yc}`,
   ).all(scanId) as { x: number; y: number; n: number; o: number | null }[];
-  const perCell = Math.max(0, ...rows.map((r) => r.n));
+  const perCell = rows.reduce((m, r) => Math.max(m, r.n), 0);
   if (perCell > 1) {
     return { overlay: null, note: `relic line not drawn: ${perCell} points share each cell (other axes vary)` };
   }

@@ -83,6 +83,13 @@ export interface Target {
   readonly profile?: Profile;
   /** photon energy band [lo, hi] in GeV; hi may be Infinity for "above a threshold" */
   readonly energyGeV: readonly [number, number];
+  /**
+   * satellite only, optional: one-dimensional dark-matter velocity dispersion in the satellite, km/s
+   * (dwarfs: ~10). When given, the target's flux uses <sigma v> averaged with this dispersion
+   * (velocity-dependent cross sections are much smaller in dwarfs); absent: the Galactic
+   * halo.galactic.sigmaVKmS. Must be > 0 and < 3000.
+   */
+  readonly velocityDispersionKmS?: number;
 }
 
 /** Choice of hadronic inputs for direct detection (shared physics notes direct.md §2.3). */
@@ -98,6 +105,16 @@ export interface ScanPhysicsSetup {
   readonly detectors: readonly Detector[];
   readonly targets: readonly Target[];
   readonly hadronic: Hadronic;
+  /**
+   * Optional photon-yield tables that override the built-in approximate fits (physics/indirect/yields.ts),
+   * keyed by final state: a fermion name from physics/constants ('b', 'tau', 'mu', ...), 'gg' (mediator
+   * decays to gluons) or 'med_med' (the whole mediator-pair cascade). Each table is a list of
+   * [x, dN/dx] rows with x = E_gamma / m_chi strictly increasing in (0, 1] and dN/dx >= 0 photons per
+   * annihilation (both primaries); interpolated as a power law between positive rows, zero outside.
+   * A table for a fermion also serves as the rest-frame spectrum of mediator decays into that fermion
+   * (x' = 2 E'/m_med). Absent: the fits, flagged 'approximate_yields'.
+   */
+  readonly yieldTables?: Readonly<Record<string, readonly (readonly [number, number])[]>>;
 }
 
 /** Product defaults (shared physics notes README.md, conventions table). */

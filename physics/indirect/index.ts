@@ -1,0 +1,208 @@
+/**
+ * The indirect-detection stage: <sigma v> today, branching ratios and the prompt gamma-ray flux of
+ * every target of the scan.
+ *
+ *   prepareIndirect(setup)            once per scan: validate targets and yield tables, J-factor per
+ *                                      target (jfactor.ts), velocity scales, photon-count memo
+ *   indirectObservables(point, ann, prepared)
+ *        = Maxwellian <sigma v> per channel (velocity-average.ts)
+ *          -> photons in each target's band per channel (yields.ts, cached; mediator pairs as boosted
+ *             cascades with the mediator's own decay fractions from physics/widths.ts)
+ *          -> flux (flux.ts: Majorana 1/2 <sigma v> rho^2/m^2, Dirac half of that)
+ *
+ * Flags: 'approximate_yields' (a built-in fit was used), 'no_photon_yield_<channel>' (a final state
+ * without a known yield; it contributes no photons), 'stable_mediator_no_photons' (mediator pairs
+ * with no open decay), 'sigv0_not_converged' (an adaptive velocity average missed its tolerance).
+ *
+ * Validity: prompt photons only (no inverse-Compton, no lines, no Sommerfeld factor); satellites
+ * without the Milky-Way foreground; see each module's head comment.
+ * References: shared notes indirect.md B5-B8, A6.
+ */
+import type { Annihilation } from '../annihilation-model.js';
+import { GEV2_TO_CM3S } from '../constants.js';
+import { InvalidInputError, type Issue } from '../issue.js';
+import type { ModelPoint } from '../model.js';
+import type { ScanPhysicsSetup, Target } from '../setup.js';
+import { mediatorWidth } from '../widths.js';
+import { cascadePhotons, directPhotons, photonFluxCm2s, PhotonMemo, type Band } from './flux.js';
+import { coneJFactor } from './jfactor.js';
+import { galacticDensity, satelliteDensity } from './profiles.js';
+import { maxwellAverage, relativeVelocityScale, type VelocityAverage } from './velocity-average.js';
+import { checkYieldTables, yieldSourceFor, type YieldTable } from './yields.js';
+
+/** Name of the mediator-pair channel in the Annihilation contract (physics/annihilation.ts). */
+const MEDIATOR_PAIR = 'med_med';
+
+export interface PreparedTarget {
+  readonly name: string;
+  readonly kind: Target['kind'];
+  /** J-factor of the target's cone, GeV^2 cm^-5 */
+  readonly jGeV2cm5: number;
+  readonly band: Band;
+  /** relative-velocity scale w = 2 sigma_1D / c used for this target's <sigma v> */
+  readonly velocityScale: number;
+}
+
+export interface IndirectPrepared {
+  readonly targets: readonly PreparedTarget[];
+  /** relative-velocity scale of the Galactic halo (for sigv0) */
+  readonly galacticVelocityScale: number;
+  readonly yieldTables: Readonly<Record<string, YieldTable>> | undefined;
+  /** per-scan cache of photons per annihilation in each band (bounded) */
+  readonly memo: PhotonMemo;
+}
+
+export interface IndirectResult {
+  /** <sigma v> today in the Galactic halo, cm^3/s (chi chibar for Dirac, chi chi for Majorana) */
+  readonly sigv0Cm3s: number;
+  /** fraction of <sigma v> today per final state (Galactic halo velocities) */
+  readonly branching: Readonly<Record<string, number>>;
+  /** integrated photon flux per target in its band, cm^-2 s^-1, same order as setup.targets */
+  readonly fluxByTarget: readonly number[];
+  readonly flags: readonly string[];
+}
+
+const MAX_DISPERSION_KMS = 3000;
+
+function checkTarget(t: Target, path: string, issues: Issue[]): void {
+  if (!(Number.isFinite(t.coneDeg) && t.coneDeg > 0 && t.coneDeg <= 180)) {
+    issues.push({ code: 'out_of_range', path: `${path}.coneDeg`, message: 'cone half-angle must be in (0, 180] degrees', seen: String(t.coneDeg), allowed: '0 < coneDeg <= 180' });
+  }
+  const [lo, hi] = t.energyGeV ?? [NaN, NaN];
+  if (!(Number.isFinite(lo) && lo > 0 && hi > lo)) {
+    issues.push({
+      code: 'out_of_range', path: `${path}.energyGeV`, message: 'photon energy band [lo, hi] needs 0 < lo < hi (hi may be Infinity), GeV',
+      seen: JSON.stringify(t.energyGeV), allowed: '0 < lo < hi <= Infinity',
+    });
+  }
+  if (t.kind === 'satellite' && !(Number.isFinite(t.distanceKpc) && (t.distanceKpc as number) > 0)) {
+    issues.push({ code: 'out_of_range', path: `${path}.distanceKpc`, message: 'satellite distance must be a finite number > 0 (kpc)', seen: String(t.distanceKpc), allowed: '> 0' });
+  }
+  if (t.kind !== 'satellite' && t.kind !== 'galactic_centre') {
+    issues.push({ code: 'invalid_choice', path: `${path}.kind`, message: 'target kind must be galactic_centre or satellite', seen: String(t.kind), allowed: 'galactic_centre, satellite' });
+  }
+  const v = t.velocityDispersionKmS;
+  if (v !== undefined && !(Number.isFinite(v) && v > 0 && v < MAX_DISPERSION_KMS)) {
+    issues.push({ code: 'out_of_range', path: `${path}.velocityDispersionKmS`, message: `velocity dispersion must be in (0, ${MAX_DISPERSION_KMS}) km/s`, seen: String(v), allowed: `0 < v < ${MAX_DISPERSION_KMS}` });
+  }
+}
+
+/**
+ * Once per scan: validates the targets and yield tables (InvalidInputError lists every problem with
+ * its path), computes each target's J-factor and velocity scale, and sets up the photon memo.
+ */
+export function prepareIndirect(setup: ScanPhysicsSetup): IndirectPrepared {
+  const issues: Issue[] = [];
+  const sigma = setup.halo.galactic.sigmaVKmS;
+  if (!(Number.isFinite(sigma) && sigma > 0 && sigma < MAX_DISPERSION_KMS)) {
+    issues.push({ code: 'out_of_range', path: 'halo.galactic.sigmaVKmS', message: `velocity dispersion must be in (0, ${MAX_DISPERSION_KMS}) km/s`, seen: String(sigma), allowed: `0 < v < ${MAX_DISPERSION_KMS}` });
+  }
+  setup.targets.forEach((t, i) => checkTarget(t, `targets[${i}]`, issues));
+  if (setup.yieldTables !== undefined) issues.push(...checkYieldTables(setup.yieldTables));
+  if (issues.length > 0) throw new InvalidInputError(issues);
+
+  const galacticW = relativeVelocityScale(sigma);
+  const needsGalaxy = setup.targets.some((t) => t.kind === 'galactic_centre');
+  const galaxy = needsGalaxy ? galacticDensity(setup.halo.galactic) : null;
+  const targets = setup.targets.map((t, i): PreparedTarget => {
+    const coneRad = (t.coneDeg * Math.PI) / 180;
+    const jGeV2cm5 =
+      t.kind === 'galactic_centre'
+        ? coneJFactor(galaxy!, setup.halo.galactic.r0Kpc, coneRad)
+        : coneJFactor(satelliteDensity(t, `targets[${i}]`), t.distanceKpc as number, coneRad);
+    const velocityScale =
+      t.kind === 'satellite' && t.velocityDispersionKmS !== undefined ? relativeVelocityScale(t.velocityDispersionKmS) : galacticW;
+    return Object.freeze({ name: t.name, kind: t.kind, jGeV2cm5, band: Object.freeze({ loGeV: t.energyGeV[0], hiGeV: t.energyGeV[1] }), velocityScale });
+  });
+  return Object.freeze({
+    targets: Object.freeze(targets),
+    galacticVelocityScale: galacticW,
+    yieldTables: setup.yieldTables,
+    memo: new PhotonMemo(),
+  });
+}
+
+/** Mediator decay fractions into final states with a photon yield (the DM pair is closed when m_chi > m_med). */
+function mediatorDecayFractions(point: ModelPoint): Record<string, number> {
+  const partials = mediatorWidth(point).partialsGeV;
+  let total = 0;
+  for (const [k, v] of Object.entries(partials)) if (k !== 'dm') total += v;
+  const out: Record<string, number> = {};
+  if (!(total > 0)) return out;
+  for (const [k, v] of Object.entries(partials)) if (k !== 'dm') out[k] = v / total;
+  return out;
+}
+
+/** Photons per annihilation in target `index`'s band, weighted by the channel fractions of `avg`. */
+function photonsPerAnnihilation(
+  point: ModelPoint, ann: Annihilation, avg: VelocityAverage, prepared: IndirectPrepared, index: number,
+  flags: Set<string>, decayFractions: () => Record<string, number>,
+): number {
+  const target = prepared.targets[index]!;
+  const tag = String(index);
+  const m = ann.mChiGeV;
+  let photons = 0;
+  ann.channels.forEach((channel, c) => {
+    const fraction = avg.totalGeV2 > 0 ? (avg.byChannelGeV2[c] as number) / avg.totalGeV2 : 0;
+    if (!(fraction > 0)) return;
+    const direct = yieldSourceFor(channel.name, prepared.yieldTables);
+    if (direct !== null) {
+      if (direct.kind !== 'table') flags.add('approximate_yields');
+      photons += fraction * directPhotons(prepared.memo, tag, direct, m, target.band);
+      return;
+    }
+    if (channel.name !== MEDIATOR_PAIR) {
+      flags.add(`no_photon_yield_${channel.name}`);
+      return;
+    }
+    const decays = decayFractions();
+    if (Object.keys(decays).length === 0) flags.add('stable_mediator_no_photons');
+    let cascade = 0;
+    for (const [k, br] of Object.entries(decays)) {
+      const source = yieldSourceFor(k, prepared.yieldTables);
+      if (source === null) {
+        flags.add(`no_photon_yield_${k}`);
+        continue;
+      }
+      if (source.kind !== 'table') flags.add('approximate_yields');
+      cascade += br * cascadePhotons(prepared.memo, tag, source, m, point.m_med, target.band);
+    }
+    photons += fraction * cascade;
+  });
+  return photons;
+}
+
+/**
+ * Per point: <sigma v> today, branching ratios and the flux of every target. Pure apart from the
+ * photon memo, whose hits equal its misses bit for bit.
+ */
+export function indirectObservables(point: ModelPoint, ann: Annihilation, prepared: IndirectPrepared): IndirectResult {
+  const flags = new Set<string>();
+  const galactic = maxwellAverage(ann, prepared.galacticVelocityScale);
+  if (!galactic.converged) flags.add('sigv0_not_converged');
+  const branching: Record<string, number> = {};
+  ann.channels.forEach((channel, c) => {
+    branching[channel.name] = galactic.totalGeV2 > 0 ? (galactic.byChannelGeV2[c] as number) / galactic.totalGeV2 : 0;
+  });
+  let fractions: Record<string, number> | null = null;
+  const decayFractions = (): Record<string, number> => (fractions ??= mediatorDecayFractions(point));
+
+  const fluxByTarget = prepared.targets.map((target, i) => {
+    let avg = galactic;
+    if (target.velocityScale !== prepared.galacticVelocityScale) {
+      avg = maxwellAverage(ann, target.velocityScale);
+      if (!avg.converged) flags.add('sigv0_not_converged');
+    }
+    if (!(avg.totalGeV2 > 0)) return 0;
+    const photons = photonsPerAnnihilation(point, ann, avg, prepared, i, flags, decayFractions);
+    return photonFluxCm2s(avg.totalGeV2, target.jGeV2cm5, ann.mChiGeV, photons, point.dm);
+  });
+  return Object.freeze({
+    sigv0Cm3s: galactic.totalGeV2 * GEV2_TO_CM3S,
+    branching: Object.freeze(branching),
+    fluxByTarget: Object.freeze(fluxByTarget),
+    flags: Object.freeze([...flags].sort()),
+  });
+}
+
+export { coneJFactor } from './jfactor.js';

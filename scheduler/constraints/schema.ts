@@ -46,8 +46,8 @@ import { MAX_EXPRESSION_LENGTH } from '../expressions.js';
 /** Verdict-table columns that a constraint name may not take. */
 export const RESERVED_COLUMNS: readonly string[] = Object.freeze(['scan_id', 'constraint_set', 'point_id', 'survives']);
 
-/** Most constraints in one set (each is a verdict column). */
-export const MAX_CONSTRAINTS = 64;
+/** Most constraints in one set: each is a verdict column, and the judge packs a point's verdicts into the 52-bit integer range of a double. */
+export const MAX_CONSTRAINTS = 50;
 
 export const CONSTRAINT_KINDS = ['relic', 'limit_curve', 'events_limit', 'flux_limit', 'expression'] as const;
 export type ConstraintKind = (typeof CONSTRAINT_KINDS)[number];

@@ -49,8 +49,8 @@ export function registerPlot(program: Command): void {
     .requiredOption('--y <name>', 'parameter or observable on the vertical axis')
     .option('--color <name>', 'colour points or cells by this parameter or observable (viridis)')
     .option('--survivors-only', 'draw only points that survive every constraint of the set')
-    .option('--set <name>', 'constraint set whose verdicts are shown (default: the only one)')
-    .option('--scan <id>', 'scan id in the ledger (default: the most recent scan)')
+    .option('--set <name>', 'constraint set whose verdicts are shown (default: the most recently judged)')
+    .option('--scan <id>', 'scan id or name in the ledger (default: the only scan)')
     .requiredOption('--out <file>', 'output file, .svg or .png (PNG at 2 pixels per SVG unit)')
     .option('--x-scale <kind>', `x axis scale, ${scales} (auto: log when positive over >= 1.5 decades)`, 'auto')
     .option('--y-scale <kind>', `y axis scale, ${scales}`, 'auto')
@@ -60,13 +60,12 @@ export function registerPlot(program: Command): void {
     .option('--json', 'print what was written as one JSON object')
     .action((db: string, flags: PlotFlags) => {
       const issues: Issue[] = [];
-      const scan = integerFlag(flags.scan, '--scan', issues);
-      const width = integerFlag(flags.width, '--width', issues);
+            const width = integerFlag(flags.width, '--width', issues);
       const height = integerFlag(flags.height, '--height', issues);
       if (issues.length) throw new InvalidInputError(issues);
       const result = writePlot({
         db, out: flags.out, x: flags.x, y: flags.y, color: flags.color, survivorsOnly: flags.survivorsOnly ?? false,
-        set: flags.set, scan, width, height,
+        set: flags.set, scan: flags.scan, width, height,
         xScale: flags.xScale as ScaleChoice, yScale: flags.yScale as ScaleChoice, colorScale: flags.colorScale as ScaleChoice,
       });
       if (flags.json) process.stdout.write(`${JSON.stringify(result)}\n`);

@@ -7,6 +7,7 @@
 import fs from 'node:fs';
 import Database from 'better-sqlite3';
 import { InvalidInputError, type Issue } from '../../physics/issue.js';
+import { listSets } from '../constraints/judge.js';
 
 export interface ScanRow {
   readonly id: number;
@@ -61,17 +62,21 @@ export class LedgerView {
     return this.db.prepare('SELECT * FROM scans ORDER BY id').all() as ScanRow[];
   }
 
-  /** The scan with this id, or the only / most recent scan when no id is given. */
-  scan(id: number | undefined, path = '--scan'): ScanRow {
+  /**
+   * The scan `ref` (its id or its name), or the only scan when no ref is given; several scans and
+   * no ref is ambiguous and reported with the choices (as the judge and survivors commands do).
+   */
+  scan(ref: string | undefined, path = '--scan'): ScanRow {
     const all = this.scans();
+    const list = all.map((s) => `${s.id} (${s.name})`).join(', ');
     if (all.length === 0) throw new InvalidInputError([{ code: 'empty_ledger', path: 'DB', message: 'the ledger holds no scan' }]);
-    if (id === undefined) return all[all.length - 1] as ScanRow;
-    const found = all.find((s) => Number(s.id) === id);
+    if (ref === undefined) {
+      if (all.length === 1) return all[0] as ScanRow;
+      throw new InvalidInputError([{ code: 'scan_required', path, message: 'the ledger holds several scans; name one with --scan', allowed: list }]);
+    }
+    const found = all.find((s) => String(s.id) === ref) ?? all.find((s) => s.name === ref);
     if (!found) {
-      throw new InvalidInputError([{
-        code: 'unknown_scan', path, message: `no scan with id ${id} in this ledger`,
-        seen: String(id), allowed: all.map((s) => String(s.id)).join(', '),
-      }]);
+      throw new InvalidInputError([{ code: 'unknown_scan', path, message: `no scan '${ref}' in this ledger`, seen: ref, allowed: list }]);
     }
     return found;
   }
@@ -98,22 +103,28 @@ export class LedgerView {
     return this.db.prepare("SELECT 1 FROM sqlite_master WHERE type = 'table' AND name = 'verdicts'").get() !== undefined;
   }
 
+  /**
+   * Constraint sets with verdicts for the scan, most recently judged first where the judge's
+   * `constraint_sets` table says when (scheduler/constraints/judge.ts), else in verdict order.
+   */
   constraintSets(scanId: number): string[] {
     if (!this.hasVerdicts()) return [];
-    const rows = this.db.prepare('SELECT DISTINCT constraint_set AS s FROM verdicts WHERE scan_id = ? ORDER BY rowid').all(scanId) as { s: string }[];
-    return rows.map((r) => r.s);
+    const withVerdicts = (this.db.prepare('SELECT DISTINCT constraint_set AS s FROM verdicts WHERE scan_id = ?').all(scanId) as { s: string }[]).map((r) => r.s);
+    const judged = listSets(this.db, scanId).filter((s) => withVerdicts.includes(s));
+    return [...judged, ...withVerdicts.filter((s) => !judged.includes(s))];
   }
 
-  /** Constraint outcome columns of `verdicts` (one 0/1 column per constraint). */
-  constraintColumns(): string[] {
-    if (!this.hasVerdicts()) return [];
-    const cols = this.db.prepare("SELECT name FROM pragma_table_info('verdicts')").all() as { name: string }[];
-    return cols.map((c) => c.name).filter((n) => !VERDICT_KEYS.has(n));
+  /** Constraint outcome columns of `verdicts` holding values for this set (other sets' columns are NULL). */
+  constraintColumns(scanId: number, set: string): string[] {
+    const cols = (this.db.prepare("SELECT name FROM pragma_table_info('verdicts')").all() as { name: string }[])
+      .map((c) => c.name).filter((n) => !VERDICT_KEYS.has(n));
+    return cols.filter((c) => this.db.prepare(`SELECT 1 FROM verdicts WHERE scan_id = ? AND constraint_set = ? AND ${quoteId(c)} IS NOT NULL LIMIT 1`).get(scanId, set) !== undefined);
   }
 
   /**
-   * The constraint set to show: the named one, the only one, or null when the scan was never
-   * judged. Several sets and no name is ambiguous and reported with the choices.
+   * The constraint set to show: the named one, else the most recently judged one (as `survivors`
+   * does), else the only one; null when the scan was never judged. Several sets and no way to
+   * order them is ambiguous and reported with the choices.
    */
   resolveConstraintSet(scanId: number, name: string | undefined, path = '--set'): string | null {
     const sets = this.constraintSets(scanId);
@@ -127,7 +138,7 @@ export class LedgerView {
       return name;
     }
     if (sets.length === 0) return null;
-    if (sets.length === 1) return sets[0] as string;
+    if (sets.length === 1 || listSets(this.db, scanId).includes(sets[0] as string)) return sets[0] as string;
     throw new InvalidInputError([{
       code: 'ambiguous_constraint_set', path, message: 'the scan was judged against several constraint sets: choose one with --set',
       allowed: sets.join(', '),

@@ -1,95 +1,100 @@
 /**
- * Limit curves to draw over a plane: the spec's `limit curve` constraints whose observable and
- * parameter are the plane's y and x. The curve is read from the constraint's CSV file (resolved
- * against the ledger's directory, then the working directory) and drawn as given, point to point;
- * on log axes a straight segment in the picture is the log-log interpolation the judge uses.
- * A curve that cannot be read leaves the picture intact and adds a note saying why.
+ * Limit curves to draw over a plane: the `limit_curve` constraints whose observable and `versus`
+ * parameter are the plane's y and x. The curve drawn is the one the verdicts were judged against:
+ * the resolved definition of the constraint set (scheduler/constraints stores the table inline in
+ * `constraint_sets.definition_json`). A scan not yet judged falls back to the spec's constraints,
+ * read with the constraints module's own curve-file parser, paths taken from the ledger's directory
+ * and then the working directory (the spec's own directory is not stored). Points are joined by
+ * straight segments, which on log axes is the judge's log-log interpolation. A curve that cannot be
+ * read leaves the picture intact and adds a note saying why.
  */
 import fs from 'node:fs';
 import path from 'node:path';
+import type Database from 'better-sqlite3';
+import { parseCurve } from '../constraints/curve-file.js';
+import { PARAMETERS } from '../../physics/model.js';
+import { FIXED_OBSERVABLES } from '../../physics/observables.js';
 import type { Overlay } from './render-plane.js';
 
-/** What the picture needs from one limit-curve constraint of a spec. */
-export interface LimitCurveRef {
+interface CurveConstraint {
   readonly label: string;
-  /** parameter on the horizontal axis */
-  readonly x: string;
-  /** observable limited */
-  readonly y: string;
-  readonly file: string;
+  readonly versus: string;
+  readonly observable: string;
+  /** inline table (resolved definition) */
+  readonly table?: { readonly x: readonly number[]; readonly y: readonly number[] };
+  /** file to read (spec fallback) */
+  readonly file?: string;
 }
 
 const str = (v: unknown): string | undefined => (typeof v === 'string' && v !== '' ? v : undefined);
 
-/** The limit-curve constraints of a stored spec (the resolved spec JSON of the scans table). */
-export function limitCurvesInSpec(specJson: string): LimitCurveRef[] {
-  let spec: unknown;
-  try {
-    spec = JSON.parse(specJson);
-  } catch {
-    return [];
-  }
-  const constraints = (spec as { constraints?: unknown }).constraints;
-  if (!Array.isArray(constraints)) return [];
-  const out: LimitCurveRef[] = [];
-  constraints.forEach((c: Record<string, unknown>, k) => {
-    if (typeof c !== 'object' || c === null) return;
-    const kind = str(c.kind) ?? str(c.type) ?? '';
-    if (!/^limit[_ -]?curve$/i.test(kind)) return;
-    const file = str(c.file) ?? str(c.csv);
-    const y = str(c.observable);
-    if (!file || !y) return;
-    out.push({ label: str(c.label) ?? str(c.name) ?? `limit ${k + 1}`, x: str(c.parameter) ?? 'm_chi', y, file });
+function fromList(list: unknown): CurveConstraint[] {
+  if (!Array.isArray(list)) return [];
+  const out: CurveConstraint[] = [];
+  list.forEach((raw: unknown, k) => {
+    if (typeof raw !== 'object' || raw === null) return;
+    const c = raw as Record<string, unknown>;
+    if (c.kind !== 'limit_curve') return;
+    const observable = str(c.observable);
+    if (!observable) return;
+    const curve = c.curve as { x?: unknown; y?: unknown } | undefined;
+    const table = curve && Array.isArray(curve.x) && Array.isArray(curve.y)
+      ? { x: curve.x as number[], y: curve.y as number[] } : undefined;
+    out.push({ label: str(c.name) ?? `limit_curve_${k}`, versus: str(c.versus) ?? 'm_chi', observable, table, file: str(c.file) });
   });
   return out;
 }
 
-/**
- * Reads two numeric columns (x, y) from a CSV file: '#' starts a comment, a first line that is not
- * numeric is a header, separators are commas, semicolons or white space.
- */
-export function readCurveCsv(file: string): { x: number; y: number }[] {
-  const text = fs.readFileSync(file, 'utf8');
-  const points: { x: number; y: number }[] = [];
-  let lineNo = 0;
-  for (const raw of text.split(/\r?\n/)) {
-    lineNo++;
-    const line = raw.replace(/#.*/, '').trim();
-    if (line === '') continue;
-    const cells = line.split(/[\s,;]+/);
-    const x = Number(cells[0]);
-    const y = Number(cells[1]);
-    if (!Number.isFinite(x) || !Number.isFinite(y)) {
-      if (points.length === 0 && Number.isNaN(x)) continue;
-      throw new Error(`${file}:${lineNo}: expected two numbers, found '${raw.trim()}'`);
-    }
-    points.push({ x, y });
+/** The limit-curve constraints of the shown constraint set, else of the stored spec. */
+function curveConstraints(db: Database.Database, scanId: number, set: string | null, specJson: string): { judged: boolean; list: CurveConstraint[] } {
+  const hasSets = db.prepare("SELECT 1 FROM sqlite_master WHERE type = 'table' AND name = 'constraint_sets'").get() !== undefined;
+  if (set !== null && hasSets) {
+    const row = db.prepare('SELECT definition_json AS d FROM constraint_sets WHERE scan_id = ? AND name = ?').get(scanId, set) as { d: string } | undefined;
+    if (row) return { judged: true, list: fromList(JSON.parse(row.d)) };
   }
-  if (points.length < 2) throw new Error(`${file}: a limit curve needs at least two points`);
-  return points;
+  let spec: { constraints?: unknown } = {};
+  try {
+    spec = JSON.parse(specJson) as { constraints?: unknown };
+  } catch {
+    return { judged: false, list: [] };
+  }
+  return { judged: false, list: fromList(spec.constraints) };
+}
+
+const parameterUnit = (name: string): string => PARAMETERS.find((p) => p.name === name)?.unit ?? '';
+function observableUnit(name: string): string {
+  const fixed = FIXED_OBSERVABLES.find((o) => o.name === name);
+  if (fixed) return fixed.unit;
+  if (name.startsWith('flux_')) return 'cm^-2 s^-1';
+  return '';
 }
 
 /** The overlays for the plane (x, y), with notes for curves that could not be read. */
 export function limitCurveOverlays(
-  specJson: string, x: string, y: string, ledgerFile: string,
+  db: Database.Database, scanId: number, set: string | null, specJson: string, x: string, y: string, ledgerFile: string,
 ): { overlays: Overlay[]; notes: string[] } {
   const overlays: Overlay[] = [];
   const notes: string[] = [];
-  for (const ref of limitCurvesInSpec(specJson)) {
-    if (ref.x !== x || ref.y !== y) continue;
-    const candidates = path.isAbsolute(ref.file)
-      ? [ref.file]
-      : [path.resolve(path.dirname(ledgerFile), ref.file), path.resolve(ref.file)];
-    const found = candidates.find((f) => fs.existsSync(f));
-    if (!found) {
-      notes.push(`limit curve '${ref.label}' not drawn: ${ref.file} not found`);
+  for (const c of curveConstraints(db, scanId, set, specJson).list) {
+    if (c.versus !== x || c.observable !== y) continue;
+    if (c.table) {
+      overlays.push({ label: c.label, lines: [c.table.x.map((xv, i) => ({ x: xv, y: c.table?.y[i] as number }))], dashed: false });
       continue;
     }
-    try {
-      overlays.push({ label: ref.label, lines: [readCurveCsv(found)], dashed: false });
-    } catch (err) {
-      notes.push(`limit curve '${ref.label}' not drawn: ${(err as Error).message}`);
+    if (!c.file) continue;
+    const candidates = path.isAbsolute(c.file) ? [c.file] : [path.resolve(path.dirname(ledgerFile), c.file), path.resolve(c.file)];
+    const found = candidates.find((f) => fs.existsSync(f));
+    if (!found) {
+      notes.push(`limit curve '${c.label}' not drawn: ${c.file} not found`);
+      continue;
     }
+    const parsed = parseCurve(fs.readFileSync(found, 'utf8'), parameterUnit(x), observableUnit(y), c.label);
+    if (!parsed.curve) {
+      notes.push(`limit curve '${c.label}' not drawn: ${parsed.issues[0]?.message ?? 'unreadable'}`);
+      continue;
+    }
+    const curve = parsed.curve;
+    overlays.push({ label: c.label, lines: [curve.x.map((xv, i) => ({ x: xv, y: curve.y[i] as number }))], dashed: false });
   }
   return { overlays, notes };
 }

@@ -25,8 +25,8 @@ export interface PlaneOptions {
   readonly survivorsOnly?: boolean;
   /** constraint set name (verdicts.constraint_set) */
   readonly set?: string;
-  /** scan id; default the most recent scan of the ledger */
-  readonly scan?: number;
+  /** scan id or name; default the only scan of the ledger */
+  readonly scan?: string;
   readonly xScale?: ScaleChoice;
   readonly yScale?: ScaleChoice;
   readonly colorScale?: ScaleChoice;
@@ -93,7 +93,7 @@ export function planeImage(view: LedgerView, ledgerFile: string, opts: PlaneOpti
   const relic = relicContour(view, scanId, data);
   if (relic.overlay) overlays.push(relic.overlay);
   if (relic.note) extraNotes.push(relic.note);
-  const limits = limitCurveOverlays(scan.spec_json, opts.x, opts.y, ledgerFile);
+  const limits = limitCurveOverlays(view.db, scanId, constraintSet, scan.spec_json, opts.x, opts.y, ledgerFile);
   overlays.push(...limits.overlays);
   extraNotes.push(...limits.notes);
 

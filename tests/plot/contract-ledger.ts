@@ -36,7 +36,7 @@ export function createContractLedger(file: string, input: LedgerInput = {}): Dat
     CREATE TABLE points (scan_id INTEGER NOT NULL, point_id INTEGER NOT NULL, dm TEXT, mediator TEXT,
       ${NUMERIC.map((c) => `${c} REAL`).join(', ')}, flags TEXT, PRIMARY KEY (scan_id, point_id));
     CREATE TABLE verdicts (scan_id INTEGER NOT NULL, constraint_set TEXT NOT NULL, point_id INTEGER NOT NULL,
-      ${constraints.map((c) => `"${c}" INTEGER`).join(', ')}, survives INTEGER NOT NULL,
+      ${constraints.map((c) => `"${c}" INTEGER, `).join('')}survives INTEGER NOT NULL,
       PRIMARY KEY (scan_id, constraint_set, point_id));
   `);
   db.prepare(`INSERT INTO scans (id, name, spec_json, spec_hash, code_version, created_at, status, constants_edition, knobs_json)

@@ -13,6 +13,10 @@ import { LedgerView } from '../../scheduler/plot/ledger-view.js';
 import { relicContour } from '../../scheduler/plot/relic-contour.js';
 import { SCATTER_MAX_POINTS } from '../../scheduler/plot/plane-data.js';
 import { InvalidInputError } from '../../physics/issue.js';
+import { constraintsSchema } from '../../scheduler/constraints/schema.js';
+import { compileConstraints } from '../../scheduler/constraints/compile.js';
+import { judgeScan } from '../../scheduler/constraints/judge.js';
+import Database from 'better-sqlite3';
 
 let dir: string;
 const CONSTRAINTS = ['relic', 'direct'];
@@ -64,11 +68,11 @@ const bigDb = (): string => path.join(dir, 'big.db');
 beforeAll(() => {
   dir = fs.mkdtempSync(path.join(os.tmpdir(), 'darksieve-plot-'));
   grid = gridRows();
-  fs.writeFileSync(path.join(dir, 'invented-limit.csv'), '# invented limit curve for tests\nm_chi,sigma\n10,1e-44\n100,1e-46\n1000,5e-46\n');
+  fs.writeFileSync(path.join(dir, 'invented-limit.csv'), '# invented limit curve for tests\nm_chi [GeV], sigma_si_p [cm^2]\n10, 1e-44\n100, 1e-46\n1000, 5e-46\n');
   const spec = {
     name: 'grid', constraints: [
-      { kind: 'limit_curve', name: 'invented limit A', observable: 'sigma_si_p_cm2', parameter: 'm_chi', file: 'invented-limit.csv' },
-      { kind: 'limit_curve', name: 'missing curve', observable: 'sigma_si_p_cm2', parameter: 'm_chi', file: 'nowhere.csv' },
+      { kind: 'limit_curve', name: 'invented_limit_a', observable: 'sigma_si_p_cm2', versus: 'm_chi', file: 'invented-limit.csv', outOfRange: 'pass' },
+      { kind: 'limit_curve', name: 'missing_curve', observable: 'sigma_si_p_cm2', versus: 'm_chi', file: 'nowhere.csv', outOfRange: 'pass' },
     ],
   };
   const g = createContractLedger(gridDb(), { name: 'grid', spec });
@@ -200,16 +204,54 @@ describe('scatter planes', () => {
     }
   });
 
-  it('draws a limit curve of the spec with its label in the matching plane only', () => {
-    const view = LedgerView.open(gridDb());
+  it('draws a limit curve of an unjudged spec with its label in the matching plane only', () => {
+    const file = path.join(dir, 'unjudged.db');
+    const db = createContractLedger(file, { spec: { constraints: [
+      { kind: 'limit_curve', name: 'invented_limit_a', observable: 'sigma_si_p_cm2', versus: 'm_chi', file: 'invented-limit.csv', outOfRange: 'pass' },
+      { kind: 'limit_curve', name: 'missing_curve', observable: 'sigma_si_p_cm2', versus: 'm_chi', file: 'nowhere.csv', outOfRange: 'pass' },
+    ] } });
+    insertPoints(db, grid);
+    db.close();
+    const view = LedgerView.open(file);
     try {
-      const matching = planeImage(view, gridDb(), { x: 'm_chi', y: 'sigma_si_p_cm2' });
+      const matching = planeImage(view, file, { x: 'm_chi', y: 'sigma_si_p_cm2' });
       const doc = parseSvgText(matching.svg);
-      expect(doc.querySelector('[aria-description="curve invented limit A"] path')).not.toBeNull();
-      expect(doc.querySelector('[aria-description="curve label invented limit A"]')?.textContent).toBe('invented limit A');
-      expect(matching.notes.join(' ')).toContain("limit curve 'missing curve' not drawn: nowhere.csv not found");
-      const other = planeImage(view, gridDb(), { x: 'm_chi', y: 'omega_h2' });
-      expect(other.svg).not.toContain('invented limit A');
+      expect(doc.querySelector('[aria-description="curve invented_limit_a"] path')).not.toBeNull();
+      expect(doc.querySelector('[aria-description="curve label invented_limit_a"]')?.textContent).toBe('invented_limit_a');
+      expect(matching.notes.join(' ')).toContain("limit curve 'missing_curve' not drawn: nowhere.csv not found");
+      const other = planeImage(view, file, { x: 'm_chi', y: 'omega_h2' });
+      expect(other.svg).not.toContain('invented_limit_a');
+    } finally {
+      view.close();
+    }
+  });
+});
+
+describe('ledgers judged by the constraints module', () => {
+  it('shows the most recently judged set and draws the limit curve it was judged against', () => {
+    const file = path.join(dir, 'judged.db');
+    const csv = path.join(dir, 'judged-limit.csv');
+    fs.writeFileSync(csv, '# invented limit curve for tests\nm_chi [GeV], sigma_si_p [cm^2]\n10, 3e-45\n1000, 3e-45\n');
+    createContractLedger(file, { constraints: [] }).close();
+    const db = new Database(file);
+    insertPoints(db, grid);
+    const constraints = constraintsSchema.parse([
+      { kind: 'relic', name: 'relic' },
+      { kind: 'limit_curve', name: 'invented_flat', observable: 'sigma_si_p_cm2', versus: 'm_chi', file: csv, outOfRange: 'fail' },
+    ]);
+    const ctx = { parameters: ['m_chi', 'm_med', 'g_chi', 'g_q'], observables: ['omega_h2', 'sigma_si_p_cm2', 'sigv0_cm3s'], rhoLocalGeVcm3: 0.3, baseDir: dir };
+    const { compiled, issues } = compileConstraints(constraints, ctx);
+    expect(issues).toEqual([]);
+    const summary = judgeScan(db, 1, 'invented', compiled!);
+    db.close();
+    fs.rmSync(csv); // the picture must use the judged definition, not the file
+    const view = LedgerView.open(file);
+    try {
+      const image = planeImage(view, file, { x: 'm_chi', y: 'sigma_si_p_cm2' });
+      expect(image.notes[0]).toContain(`${summary.survivors} survive constraint set 'invented'`);
+      const doc = parseSvgText(image.svg);
+      expect(doc.querySelectorAll('[aria-description="survivors"] circle')).toHaveLength(summary.survivors);
+      expect(doc.querySelector('[aria-description="curve invented_flat"] path')).not.toBeNull();
     } finally {
       view.close();
     }
@@ -260,7 +302,7 @@ describe('bad input', () => {
     expectIssues(() => writePlot({ db: gridDb(), out, x: 'm_chi', y: 'nope', color: 'flags' }), ['--y', '--color']);
     expectIssues(() => writePlot({ db: scatterDb(), out, x: 'm_chi', y: 'g_chi' }), ['--set']);
     expectIssues(() => writePlot({ db: scatterDb(), out, x: 'm_chi', y: 'g_chi', set: 'loose' }), ['--set']);
-    expectIssues(() => writePlot({ db: gridDb(), out, x: 'm_chi', y: 'm_med', scan: 7 }), ['--scan']);
+    expectIssues(() => writePlot({ db: gridDb(), out, x: 'm_chi', y: 'm_med', scan: '7' }), ['--scan']);
     expectIssues(() => writePlot({ db: gridDb(), out, x: 'm_chi', y: 'm_med', xScale: 'cubic' as never }), ['--x-scale']);
     expectIssues(() => writePlot({ db: gridDb(), out: path.join(dir, 'never.pdf'), x: 'm_chi', y: 'm_med' }), ['--out']);
     expectIssues(() => writePlot({ db: path.join(dir, 'absent.db'), out, x: 'm_chi', y: 'm_med' }), ['DB']);

@@ -17,11 +17,92 @@
  * Chunks are contiguous id ranges [chunk * chunkSize, ...). Integer arithmetic only on ids
  * (< 1e12 < 2^53), so every platform gives the same points.
  */
-import type { Issue } from '../physics/issue.js';
-import { InvalidInputError } from '../physics/issue.js';
 import { PARAMETERS, checkNumber, type ModelPoint, type ParameterSpec } from '../physics/model.js';
-import type { CompiledExpression } from './expressions.js';
-import { axisSize, compileEqualsAxes, type Axis, type ParamValue, type ScanSpec } from './spec.js';
+import type { ScanPhysicsSetup, Target } from '../physics/setup.js';
+import type { Constraint } from './constraints/schema.js';
+
+// ------------------------------------------------------------------ the resolved spec (types)
+// Validation lives in spec.ts (zod, mathjs); these types and the plan stay free of those imports so
+// a worker thread that only evaluates chunks starts quickly.
+
+export type ParamValue = number | string | null;
+
+export interface RangeAxis {
+  readonly kind: 'range';
+  readonly param: string;
+  readonly from: number;
+  readonly to: number;
+  /** number of grid values including both ends; null for random / Latin-hypercube sampling */
+  readonly steps: number | null;
+  readonly spacing: 'lin' | 'log';
+}
+export interface ValuesAxis {
+  readonly kind: 'values';
+  readonly param: string;
+  readonly values: readonly (number | string)[];
+}
+export interface EqualsAxis {
+  readonly kind: 'equals';
+  readonly param: string;
+  readonly expression: string;
+}
+export type Axis = RangeAxis | ValuesAxis | EqualsAxis;
+
+export type Sampling =
+  | { readonly kind: 'grid' }
+  | { readonly kind: 'random' | 'latin_hypercube'; readonly count: number; readonly seed: number };
+
+export interface ScanSpec {
+  readonly name: string;
+  /** every parameter that is not on an axis, with its value (defaults filled in) */
+  readonly model: Readonly<Record<string, ParamValue>>;
+  /** in spec order */
+  readonly axes: readonly Axis[];
+  readonly sampling: Sampling;
+  readonly setup: ScanPhysicsSetup;
+  /** shape-checked by spec.ts; names, files and expressions are checked against the scan by the judge */
+  readonly constraints: readonly Constraint[];
+}
+
+/** An equals axis compiled by spec.ts (mathjs sandbox of scheduler/expressions.ts). */
+export interface CompiledEquals {
+  readonly param: string;
+  readonly expression: string;
+  readonly evaluate: (scope: Readonly<Record<string, number>>) => number | boolean;
+}
+
+/** Number of distinct values an axis contributes to a grid (equals axes contribute none). */
+export function axisSize(axis: Axis): number {
+  if (axis.kind === 'range') return axis.steps ?? 1;
+  if (axis.kind === 'values') return axis.values.length;
+  return 1;
+}
+
+/**
+ * Rebuilds a ScanSpec from the resolved JSON that spec.ts wrote after validating it (the scheduler
+ * sends nothing else to workers), without loading the validators.
+ */
+export function decodeResolvedSpec(json: string): ScanSpec {
+  const doc = JSON.parse(json) as {
+    name: string; model: Record<string, ParamValue>; axes: Record<string, Record<string, unknown>>; sampling: Sampling;
+    halo: ScanPhysicsSetup['halo']; hadronic: ScanPhysicsSetup['hadronic']; detectors: ScanPhysicsSetup['detectors'];
+    targets: (Omit<Target, 'energyGeV'> & { energyGeV: [number, number | null] })[]; constraints: Constraint[];
+  };
+  const axes = Object.entries(doc.axes).map(([param, a]): Axis => {
+    if ('equals' in a) return { kind: 'equals', param, expression: a.equals as string };
+    if ('values' in a) return { kind: 'values', param, values: a.values as (number | string)[] };
+    return { kind: 'range', param, from: a.from as number, to: a.to as number, steps: (a.steps as number | undefined) ?? null, spacing: a.spacing as 'lin' | 'log' };
+  });
+  return {
+    name: doc.name, model: doc.model, axes, sampling: doc.sampling, constraints: doc.constraints,
+    setup: {
+      halo: doc.halo, hadronic: doc.hadronic, detectors: doc.detectors,
+      targets: doc.targets.map((t) => ({ ...t, energyGeV: [t.energyGeV[0], t.energyGeV[1] ?? Infinity] as const })),
+    },
+  };
+}
+
+// ------------------------------------------------------------------ plan
 
 export interface ChunkRange {
   readonly chunk: number;
@@ -98,8 +179,6 @@ export function permuteIndex(index: number, n: number, seed: number, axis: numbe
   return x;
 }
 
-// ------------------------------------------------------------------ plan
-
 function rangeValue(axis: Extract<Axis, { kind: 'range' }>, t: number): number {
   if (axis.spacing === 'lin') return axis.from + (axis.to - axis.from) * t;
   return axis.from * Math.pow(axis.to / axis.from, t);
@@ -127,9 +206,10 @@ export class Plan {
   readonly chunkCount: number;
   private readonly sampled: readonly Axis[];
   private readonly sizes: readonly number[];
-  private readonly equals: readonly { param: string; compiled: CompiledExpression }[];
+  private readonly equals: readonly CompiledEquals[];
 
-  constructor(spec: ScanSpec, chunkSize: number) {
+  /** `equals`: the spec's equals axes compiled in dependency order (spec.ts planEquals). */
+  constructor(spec: ScanSpec, chunkSize: number, equals: readonly CompiledEquals[]) {
     if (!Number.isInteger(chunkSize) || chunkSize < 1) throw new RangeError(`chunk size must be a positive integer, got ${chunkSize}`);
     this.spec = spec;
     this.sampled = spec.axes.filter((a) => a.kind !== 'equals');
@@ -137,9 +217,9 @@ export class Plan {
     this.total = spec.sampling.kind === 'grid' ? this.sizes.reduce((n, s) => n * s, 1) : spec.sampling.count;
     this.chunkSize = chunkSize;
     this.chunkCount = Math.ceil(this.total / chunkSize);
-    const issues: Issue[] = [];
-    this.equals = compileEqualsAxes(spec.axes, spec.model, issues);
-    if (issues.length > 0) throw new InvalidInputError(issues);
+    const missing = spec.axes.filter((a) => a.kind === 'equals' && !equals.some((e) => e.param === a.param));
+    if (missing.length > 0) throw new Error(`equals axes not compiled: ${missing.map((a) => a.param).join(', ')}`);
+    this.equals = equals;
   }
 
   chunkRange(chunk: number): ChunkRange {
@@ -153,12 +233,14 @@ export class Plan {
   }
 
   /**
-   * Parameter values of point `id` in PARAMETER_COLUMNS order, written into `out`.
-   * Throws PointParameterError when an equals axis gives a value outside its parameter's range.
+   * Parameter values of point `id` in PARAMETER_COLUMNS order, written into `out`. Returns null, or
+   * the reason the point has no valid parameters (an equals axis outside its parameter's range; that
+   * parameter is then NaN and the others are still filled in).
    */
-  paramsInto(id: number, out: ParamValue[]): void {
+  paramsInto(id: number, out: ParamValue[]): string | null {
     const values: Record<string, ParamValue> = { ...this.spec.model };
     const sampling = this.spec.sampling;
+    let error: string | null = null;
     if (sampling.kind === 'grid') {
       let rest = id;
       for (let i = this.sampled.length - 1; i >= 0; i--) {
@@ -176,29 +258,29 @@ export class Plan {
     }
     if (this.equals.length > 0) {
       const scope: Record<string, number> = {};
-      for (const [k, v] of Object.entries(values)) if (typeof v === 'number') scope[k] = v;
-      for (const { param, compiled } of this.equals) {
-        const v = compiled.evaluate!(scope);
-        const value = typeof v === 'number' ? v : NaN;
+      for (const [k, v] of Object.entries(values)) scope[k] = typeof v === 'number' ? v : NaN;
+      for (const { param, evaluate, expression } of this.equals) {
+        const v = evaluate(scope);
+        let value = typeof v === 'number' ? v : NaN;
         const issue = checkNumber(PARAM_BY_NAME.get(param) as Parameters<typeof checkNumber>[0], value, `axes.${param}.equals`);
-        if (issue) throw new PointParameterError(`${param} = ${String(v)} from '${this.expressionOf(param)}' is outside ${issue.allowed ?? 'its range'}`);
+        if (issue) {
+          error ??= `${param} = ${String(v)} from '${expression}' is outside ${issue.allowed ?? 'its range'}`;
+          value = NaN;
+        }
         values[param] = value;
         scope[param] = value;
       }
     }
     for (let i = 0; i < PARAMETER_COLUMNS.length; i++) out[i] = values[PARAMETER_COLUMNS[i]!] ?? null;
+    return error;
   }
 
-  /** The model point of id `id` (see paramsInto). */
+  /** The model point of id `id`; throws PointParameterError when paramsInto reports a problem. */
   point(id: number): ModelPoint {
     const out: ParamValue[] = new Array(PARAMETER_COLUMNS.length);
-    this.paramsInto(id, out);
+    const error = this.paramsInto(id, out);
+    if (error !== null) throw new PointParameterError(error);
     return pointFromParams(out);
-  }
-
-  private expressionOf(param: string): string {
-    const axis = this.spec.axes.find((a) => a.param === param);
-    return axis && axis.kind === 'equals' ? axis.expression : '';
   }
 }
 

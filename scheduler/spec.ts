@@ -43,50 +43,11 @@ import {
   type ScanPhysicsSetup,
   type Target,
 } from '../physics/setup.js';
-import { compileExpression, type CompiledExpression } from './expressions.js';
+import { compileExpression } from './expressions.js';
+import { axisSize, Plan, type Axis, type CompiledEquals, type EqualsAxis, type ParamValue, type Sampling, type ScanSpec } from './plan.js';
+import { constraintsSchema } from './constraints/schema.js';
 
-/** Until the constraints schema lands, constraints pass through as a list and are judged later. */
-const constraintsSchema = z.array(z.unknown());
-
-// ------------------------------------------------------------------ resolved types
-
-export type ParamValue = number | string | null;
-
-export interface RangeAxis {
-  readonly kind: 'range';
-  readonly param: string;
-  readonly from: number;
-  readonly to: number;
-  /** number of grid values including both ends; absent for random / Latin-hypercube sampling */
-  readonly steps: number | null;
-  readonly spacing: 'lin' | 'log';
-}
-export interface ValuesAxis {
-  readonly kind: 'values';
-  readonly param: string;
-  readonly values: readonly (number | string)[];
-}
-export interface EqualsAxis {
-  readonly kind: 'equals';
-  readonly param: string;
-  readonly expression: string;
-}
-export type Axis = RangeAxis | ValuesAxis | EqualsAxis;
-
-export type Sampling =
-  | { readonly kind: 'grid' }
-  | { readonly kind: 'random' | 'latin_hypercube'; readonly count: number; readonly seed: number };
-
-export interface ScanSpec {
-  readonly name: string;
-  /** every parameter that is not on an axis, with its value (defaults filled in) */
-  readonly model: Readonly<Record<string, ParamValue>>;
-  /** in spec order */
-  readonly axes: readonly Axis[];
-  readonly sampling: Sampling;
-  readonly setup: ScanPhysicsSetup;
-  readonly constraints: readonly unknown[];
-}
+export type { Axis, EqualsAxis, ParamValue, RangeAxis, Sampling, ScanSpec, ValuesAxis } from './plan.js';
 
 /** Most points one scan may have: ids stay exact integers in JS and SQLite with room to spare. */
 export const MAX_POINTS = 1e12;
@@ -380,13 +341,6 @@ function resolveAxis(param: string, raw: unknown, sampling: Sampling, issues: Is
   return { kind: 'range', param, from: a.from, to: a.to, steps: a.steps ?? null, spacing: a.spacing };
 }
 
-/** Number of distinct values an axis contributes to a grid (equals axes contribute none). */
-export function axisSize(axis: Axis): number {
-  if (axis.kind === 'range') return axis.steps ?? 1;
-  if (axis.kind === 'values') return axis.values.length;
-  return 1;
-}
-
 /**
  * Compiles the `equals` axes in dependency order. Each may use fixed model parameters, sampled axes
  * and other equals axes; cycles are reported with their members.
@@ -395,10 +349,10 @@ export function compileEqualsAxes(
   axes: readonly Axis[],
   model: Readonly<Record<string, ParamValue>>,
   issues: Issue[],
-): { param: string; compiled: CompiledExpression }[] {
+): CompiledEquals[] {
   const equals = axes.filter((a): a is EqualsAxis => a.kind === 'equals');
   const numericSymbols = PARAMETERS.filter((p) => p.kind === 'number').map((p) => p.name);
-  const compiled = new Map<string, CompiledExpression>();
+  const compiled = new Map<string, ReturnType<typeof compileExpression>>();
   for (const a of equals) {
     const symbols = numericSymbols.filter((s) => s !== a.param);
     const c = compileExpression(a.expression, symbols, formatPath(['axes', a.param, 'equals']), { expect: 'number' });
@@ -424,7 +378,24 @@ export function compileEqualsAxes(
     order.push(param);
   };
   for (const a of equals) if (compiled.has(a.param)) visit(a.param, []);
-  return order.map((param) => ({ param, compiled: compiled.get(param)! }));
+  return order.map((param) => ({
+    param,
+    expression: equals.find((a) => a.param === param)!.expression,
+    evaluate: compiled.get(param)!.evaluate!,
+  }));
+}
+
+/** The compiled equals axes of a valid spec; throws InvalidInputError otherwise. */
+export function planEquals(spec: ScanSpec): CompiledEquals[] {
+  const issues: Issue[] = [];
+  const equals = compileEqualsAxes(spec.axes, spec.model, issues);
+  if (issues.length > 0) throw new InvalidInputError(issues);
+  return equals;
+}
+
+/** The plan of a valid spec with this chunk size. */
+export function makePlan(spec: ScanSpec, chunkSize: number): Plan {
+  return new Plan(spec, chunkSize, planEquals(spec));
 }
 
 // ------------------------------------------------------------------ parse
@@ -558,6 +529,11 @@ export function loadSpecFile(file: string): ScanSpec {
   const { spec, issues } = parseSpec(raw);
   if (!spec) throw new InvalidInputError(issues);
   return spec;
+}
+
+/** The scan-level physics inputs of a spec file (used by `point --spec`). */
+export async function loadSpecSetup(file: string): Promise<ScanPhysicsSetup> {
+  return loadSpecFile(file).setup;
 }
 
 // ------------------------------------------------------------------ resolved form

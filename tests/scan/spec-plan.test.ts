@@ -3,11 +3,10 @@
  * as documented (mixed radix, counter-based random, Latin hypercube); planning is constant memory.
  */
 import { describe, expect, it } from 'vitest';
-import { parseSpec, resolvedSpecJson, specFromResolvedJson, specHash } from '../../scheduler/spec.js';
-import { PARAMETER_COLUMNS, Plan, permuteIndex, uniform01 } from '../../scheduler/plan.js';
+import { makePlan, parseSpec, resolvedSpecJson, specFromResolvedJson, specHash } from '../../scheduler/spec.js';
+import { decodeResolvedSpec, permuteIndex, uniform01 } from '../../scheduler/plan.js';
 import { MALFORMED, baseSpec, malformed } from './malformed-specs.js';
 
-const col = (name: string): number => PARAMETER_COLUMNS.indexOf(name);
 
 describe('spec validation', () => {
   it('accepts the base spec and resolves defaults', () => {
@@ -48,6 +47,8 @@ describe('spec validation', () => {
     const again = specFromResolvedJson(json);
     expect(resolvedSpecJson(again)).toBe(json);
     expect(specHash(json)).toBe(specHash(resolvedSpecJson(parseSpec(baseSpec()).spec!)));
+    // the validator-free decoder used by worker threads gives the same spec
+    expect(resolvedSpecJson(decodeResolvedSpec(json))).toBe(json);
     const other = baseSpec();
     other.axes.m_chi.steps = 6;
     expect(specHash(resolvedSpecJson(parseSpec(other).spec!))).not.toBe(specHash(json));
@@ -56,7 +57,7 @@ describe('spec validation', () => {
 
 describe('plan', () => {
   it('grid ids are mixed-radix numbers, last axis fastest, ends exact', () => {
-    const plan = new Plan(parseSpec(baseSpec()).spec!, 3);
+    const plan = makePlan(parseSpec(baseSpec()).spec!, 3);
     expect(plan.total).toBe(10);
     expect(plan.chunkCount).toBe(4);
     expect(plan.chunkRange(3)).toEqual({ chunk: 3, firstId: 9, n: 1 });
@@ -76,14 +77,14 @@ describe('plan', () => {
     const s = baseSpec();
     delete s.axes.m_chi.steps;
     s.sampling = { kind: 'random', count: 1000, seed: 42 };
-    const plan = new Plan(parseSpec(s).spec!, 100);
+    const plan = makePlan(parseSpec(s).spec!, 100);
     const a = plan.point(777);
-    const fresh = new Plan(parseSpec(s).spec!, 7);
+    const fresh = makePlan(parseSpec(s).spec!, 7);
     expect(fresh.point(777)).toEqual(a);
     expect(a.m_chi).toBeGreaterThanOrEqual(10);
     expect(a.m_chi).toBeLessThan(1000);
     s.sampling.seed = 43;
-    expect(new Plan(parseSpec(s).spec!, 100).point(777)).not.toEqual(a);
+    expect(makePlan(parseSpec(s).spec!, 100).point(777)).not.toEqual(a);
   });
 
   it('uniform01 is in [0,1) and roughly uniform (mean 0.5 +- 5 sigma)', () => {
@@ -110,7 +111,7 @@ describe('plan', () => {
     delete s.axes.m_chi.steps;
     s.axes.m_chi.spacing = 'lin';
     s.sampling = { kind: 'latin_hypercube', count: 50, seed: 3 };
-    const plan = new Plan(parseSpec(s).spec!, 10);
+    const plan = makePlan(parseSpec(s).spec!, 10);
     const strata = new Set<number>();
     for (let id = 0; id < 50; id++) strata.add(Math.floor(((plan.point(id).m_chi - 10) / 990) * 50));
     expect(strata.size).toBe(50);
@@ -119,7 +120,7 @@ describe('plan', () => {
   it('an equals value out of range fails that point only', () => {
     const s = baseSpec();
     s.axes.g_chi.equals = 'm_med / 10'; // 100 > 4 pi for m_med = 1000
-    const plan = new Plan(parseSpec(s).spec!, 10);
+    const plan = makePlan(parseSpec(s).spec!, 10);
     expect(plan.point(0).g_chi).toBe(10);
     expect(() => plan.point(1)).toThrow(/g_chi = 100 from 'm_med \/ 10' is outside/);
   });
@@ -127,7 +128,7 @@ describe('plan', () => {
   it('plans a 1e8-point grid in constant memory', () => {
     const s = baseSpec();
     s.axes = { m_chi: { from: 1, to: 1e4, steps: 10000, spacing: 'log' }, m_med: { from: 1, to: 1e4, steps: 10000, spacing: 'log' } };
-    const plan = new Plan(parseSpec(s).spec!, 1000);
+    const plan = makePlan(parseSpec(s).spec!, 1000);
     expect(plan.total).toBe(1e8);
     globalThis.gc?.();
     const before = process.memoryUsage().heapUsed;

@@ -1,0 +1,140 @@
+/**
+ * The chunk evaluator shared by every worker kind (embedded worker thread, BullMQ worker): a resolved
+ * spec is turned into prepared physics once per worker, then each chunk (a contiguous id range) is
+ * evaluated point by point into a columnar result.
+ *
+ * Result layout (also the ledger's `points` columns after scan_id and point_id): the model parameters
+ * in physics/model.ts order, the numeric observables in Prepared.observableNames order, then `flags`.
+ * Numbers travel as Float64Array (NaN means NULL), text as string arrays.
+ *
+ * A point whose parameters cannot be formed or whose physics throws is kept: its observables are NaN
+ * and its flags read `error=<message>` (commas in the message become semicolons so flags stay a
+ * comma-separated list). Nothing here touches the ledger; the scheduler alone writes it.
+ */
+import type { ModelPoint } from '../physics/model.js';
+import type { Observables } from '../physics/observables.js';
+import type { ScanPhysicsSetup } from '../physics/setup.js';
+import { PARAMETERS } from '../physics/model.js';
+import { PARAMETER_COLUMNS, Plan, decodeResolvedSpec, pointFromParams, type ChunkRange, type CompiledEquals, type ParamValue, type ScanSpec } from './plan.js';
+
+/** What prepare() returns, as far as the scheduler needs to know. */
+export interface PreparedPhysics {
+  /** numeric observable names in ledger order (numericObservableNames of the spec's detectors/targets) */
+  readonly observableNames: readonly string[];
+  /** numerical knobs used, stored with the scan for provenance */
+  readonly knobs: unknown;
+}
+
+/** The physics entry point (physics/evaluate.ts), injectable for tests of the mechanics. */
+export interface PhysicsEngine {
+  prepare(setup: ScanPhysicsSetup): PreparedPhysics;
+  evaluate(point: ModelPoint, prepared: PreparedPhysics): Observables;
+}
+
+export type ColumnKind = 'real' | 'text';
+export type Column = Float64Array | (string | null)[];
+
+export interface ColumnLayout {
+  readonly names: readonly string[];
+  readonly kinds: readonly ColumnKind[];
+}
+
+/** One evaluated chunk, columnar, in ColumnLayout order. */
+export interface ChunkResult {
+  readonly chunk: number;
+  readonly firstId: number;
+  readonly n: number;
+  readonly columns: readonly Column[];
+  /** wall time spent evaluating this chunk in the worker, ms */
+  readonly evalMs: number;
+}
+
+/** Ledger column layout for a scan with these observables. */
+export function columnLayout(observableNames: readonly string[]): ColumnLayout {
+  return {
+    names: [...PARAMETER_COLUMNS, ...observableNames, 'flags'],
+    kinds: [...PARAMETERS.map((p): ColumnKind => (p.kind === 'enum' ? 'text' : 'real')), ...observableNames.map((): ColumnKind => 'real'), 'text'],
+  };
+}
+
+/** The default physics module; tests of the mechanics pass another module URL. */
+export const DEFAULT_PHYSICS_MODULE = new URL('../physics/evaluate.ts', import.meta.url).href;
+
+/** Loads a module exporting `prepare` and `evaluate` with the PhysicsEngine signatures. */
+export async function loadPhysicsEngine(moduleUrl: string = DEFAULT_PHYSICS_MODULE): Promise<PhysicsEngine> {
+  const mod = (await import(moduleUrl)) as Partial<PhysicsEngine>;
+  if (typeof mod.prepare !== 'function' || typeof mod.evaluate !== 'function')
+    throw new Error(`physics module ${moduleUrl} must export prepare(setup) and evaluate(point, prepared)`);
+  return { prepare: mod.prepare, evaluate: mod.evaluate };
+}
+
+/** Text stored in flags for a point that could not be evaluated. */
+export function errorFlag(message: string): string {
+  const clean = message.replace(/[,\n\r]+/g, ';').replace(/\s+/g, ' ').trim().slice(0, 300);
+  return `error=${clean}`;
+}
+
+export class ChunkEvaluator {
+  readonly spec: ScanSpec;
+  readonly prepared: PreparedPhysics;
+  readonly layout: ColumnLayout;
+  private readonly plan: Plan;
+  private readonly engine: PhysicsEngine;
+
+  private constructor(spec: ScanSpec, equals: readonly CompiledEquals[], engine: PhysicsEngine) {
+    this.spec = spec;
+    this.plan = new Plan(spec, 1, equals);
+    this.engine = engine;
+    this.prepared = engine.prepare(spec.setup);
+    this.layout = columnLayout(this.prepared.observableNames);
+  }
+
+  /**
+   * Prepares the physics of a scan once (throws when prepare() rejects the setup). The expression
+   * sandbox (mathjs, slow to load) is loaded only when the spec has equals axes.
+   */
+  static async create(resolvedSpecJson: string, engine: PhysicsEngine): Promise<ChunkEvaluator> {
+    const spec = decodeResolvedSpec(resolvedSpecJson);
+    const equals = spec.axes.some((a) => a.kind === 'equals') ? (await import('./spec.js')).planEquals(spec) : [];
+    return new ChunkEvaluator(spec, equals, engine);
+  }
+
+  get totalPoints(): number {
+    return this.plan.total;
+  }
+
+  evaluate(range: ChunkRange): ChunkResult {
+    const started = performance.now();
+    const { n, firstId } = range;
+    const nParams = PARAMETER_COLUMNS.length;
+    const observableNames = this.prepared.observableNames;
+    const columns: Column[] = this.layout.kinds.map((k) => (k === 'real' ? new Float64Array(n) : new Array<string | null>(n).fill(null)));
+    const params: ParamValue[] = new Array(nParams);
+    const flags = columns[columns.length - 1] as (string | null)[];
+    for (let i = 0; i < n; i++) {
+      const id = firstId + i;
+      const paramError = this.plan.paramsInto(id, params);
+      for (let c = 0; c < nParams; c++) {
+        const v = params[c];
+        const col = columns[c]!;
+        if (col instanceof Float64Array) col[i] = typeof v === 'number' ? v : NaN;
+        else col[i] = typeof v === 'string' ? v : null;
+      }
+      let obs: Observables | null = null;
+      let error = paramError;
+      if (error === null) {
+        try {
+          obs = this.engine.evaluate(pointFromParams(params), this.prepared);
+        } catch (err) {
+          error = err instanceof Error ? err.message : String(err);
+        }
+      }
+      for (let o = 0; o < observableNames.length; o++) {
+        const v = obs?.values[observableNames[o]!];
+        (columns[nParams + o] as Float64Array)[i] = typeof v === 'number' ? v : NaN;
+      }
+      flags[i] = error !== null ? errorFlag(error) : obs!.flags;
+    }
+    return { chunk: range.chunk, firstId, n, columns, evalMs: performance.now() - started };
+  }
+}

@@ -1,0 +1,44 @@
+/**
+ * `darksieve run SPEC [--db FILE] [--workers N] [--chunk N] [--quiet] [--new]`: starts a scan, or
+ * resumes it when the same command runs again (only chunks not done are evaluated).
+ */
+import type { Command } from 'commander';
+import { EXIT_RUNTIME } from '../exit-codes.js';
+import { describeRun, runScan, type RunSummary } from '../run.js';
+
+export interface RunCommandOptions {
+  readonly db?: string;
+  readonly workers?: string;
+  readonly chunk?: string;
+  readonly quiet?: boolean;
+  readonly new?: boolean;
+}
+
+const optionalInt = (text: string | undefined): number | undefined => (text === undefined ? undefined : Number(text));
+
+/** Runs a spec with CLI options and prints the summary; shared by `run` and `demo`. */
+export async function runAndReport(specPath: string, opts: RunCommandOptions): Promise<RunSummary> {
+  const summary = await runScan({
+    specPath, dbPath: opts.db, workers: optionalInt(opts.workers), chunkSize: optionalInt(opts.chunk),
+    quiet: opts.quiet ?? false, newScan: opts.new ?? false, handleSignals: true,
+  });
+  const out = describeRun(summary);
+  process.stdout.write(`${out.join('\n')}\n`);
+  if (summary.status !== 'done') process.exitCode = EXIT_RUNTIME;
+  return summary;
+}
+
+export function registerRun(program: Command): void {
+  program
+    .command('run')
+    .description('Start a scan, or resume it: running the same command again evaluates only the chunks not yet done')
+    .argument('<spec>', 'scan spec (JSON)')
+    .option('--db <file>', 'ledger file (default: <spec name>.db in the current directory)')
+    .option('--workers <n>', 'worker threads (default: number of cores)')
+    .option('--chunk <n>', 'points per chunk for a new scan (default: about 1.5 s of compute, from a short calibration)')
+    .option('--quiet', 'no progress output')
+    .option('--new', 'start a new scan id even if the ledger holds a scan of this name')
+    .action(async (spec: string, opts: RunCommandOptions) => {
+      await runAndReport(spec, opts);
+    });
+}

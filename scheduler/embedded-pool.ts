@@ -1,0 +1,188 @@
+/**
+ * The embedded transport: a pool of worker threads on this machine (raw node:worker_threads; each
+ * thread prepares the scan's physics once, at start, and keeps it for every chunk).
+ *
+ * Why not tinypool: the pool needs per-thread start-up state (the prepared physics, announced by a
+ * 'ready' message before any chunk), a replacement thread when one dies with the chunk it held, and
+ * immediate termination on abandon; with raw threads each of these is a few explicit lines.
+ *
+ * Failures: a chunk whose thread dies or whose evaluation throws outside the per-point guard is
+ * retried up to `maxAttempts` times (a fresh thread replaces a dead one), then reported as failed;
+ * the scan goes on. Points whose physics throws are not failures here: chunk.ts stores them flagged.
+ */
+import { availableParallelism } from 'node:os';
+import { Worker } from 'node:worker_threads';
+import type { ChunkResult } from './chunk.js';
+import type { ChunkRange } from './plan.js';
+import { TransportStartError, type ChunkOutcome, type ScanWork, type Transport } from './transport.js';
+
+export interface EmbeddedPoolOptions {
+  /** worker threads; default: os.availableParallelism() */
+  readonly workers?: number;
+  /** attempts per chunk before it is reported failed; default 3 */
+  readonly maxAttempts?: number;
+  /** module exporting prepare/evaluate; default physics/evaluate.ts (tests inject others) */
+  readonly physicsModule?: string;
+}
+
+const THREAD_ENTRY = new URL('../workers/thread-entry.mjs', import.meta.url);
+
+type ThreadMessage =
+  | { type: 'ready'; observableNames: string[] }
+  | { type: 'fatal'; error: string }
+  | { type: 'result'; result: ChunkResult }
+  | { type: 'error'; chunk: number; error: string };
+
+interface Slot {
+  worker: Worker;
+  busy: ChunkRange | null;
+}
+
+export class EmbeddedPool implements Transport {
+  readonly workers: number;
+  readonly description: string;
+  readonly window: number;
+  private readonly maxAttempts: number;
+  private readonly physicsModule: string | undefined;
+  private work: ScanWork | null = null;
+  private readonly slots = new Set<Slot>();
+  private readonly queue: ChunkRange[] = [];
+  private readonly attempts = new Map<number, number>();
+  private readonly outcomes: ChunkOutcome[] = [];
+  private waiter: ((o: ChunkOutcome) => void) | null = null;
+  private closed = false;
+
+  constructor(options: EmbeddedPoolOptions = {}) {
+    this.workers = options.workers ?? availableParallelism();
+    if (!Number.isInteger(this.workers) || this.workers < 1) throw new RangeError(`workers must be a positive integer, got ${this.workers}`);
+    this.maxAttempts = options.maxAttempts ?? 3;
+    this.physicsModule = options.physicsModule;
+    this.description = `embedded pool, ${this.workers} worker thread${this.workers === 1 ? '' : 's'}`;
+    // one chunk running and one waiting per thread keeps every thread busy across the round trip
+    this.window = 2 * this.workers;
+  }
+
+  async open(work: ScanWork): Promise<void> {
+    if (this.work) throw new Error('the pool is already open');
+    this.work = work;
+    const started = await Promise.allSettled(Array.from({ length: this.workers }, () => this.spawn()));
+    const failed = started.find((s): s is PromiseRejectedResult => s.status === 'rejected');
+    if (failed) {
+      await this.close();
+      throw failed.reason;
+    }
+  }
+
+  dispatch(range: ChunkRange): void {
+    if (this.closed) throw new Error('the pool is closed');
+    this.queue.push(range);
+    this.feed();
+  }
+
+  next(): Promise<ChunkOutcome> {
+    const ready = this.outcomes.shift();
+    if (ready) return Promise.resolve(ready);
+    if (this.waiter) throw new Error('next() is already waiting');
+    return new Promise((resolve) => {
+      this.waiter = resolve;
+    });
+  }
+
+  async close(): Promise<void> {
+    if (this.closed) return;
+    this.closed = true;
+    this.queue.length = 0;
+    const all = [...this.slots];
+    this.slots.clear();
+    await Promise.all(all.map((s) => s.worker.terminate()));
+  }
+
+  /** Starts one thread and resolves when its physics is prepared. */
+  private spawn(): Promise<Slot> {
+    const work = this.work!;
+    return new Promise((resolve, reject) => {
+      const worker = new Worker(THREAD_ENTRY, {
+        workerData: { resolvedSpecJson: work.resolvedSpecJson, physicsModule: this.physicsModule },
+      });
+      const slot: Slot = { worker, busy: null };
+      let ready = false;
+      worker.on('message', (msg: ThreadMessage) => {
+        if (msg.type === 'ready') {
+          const expected = work.observableNames.join(',');
+          if (msg.observableNames.join(',') !== expected) {
+            void worker.terminate();
+            reject(new TransportStartError(`worker observables (${msg.observableNames.join(', ')}) differ from the scan's (${expected})`));
+            return;
+          }
+          ready = true;
+          this.slots.add(slot);
+          resolve(slot);
+          this.feed();
+        } else if (msg.type === 'fatal') {
+          reject(new TransportStartError(`a worker thread could not prepare the scan: ${msg.error}`));
+        } else if (msg.type === 'result') {
+          slot.busy = null;
+          this.attempts.delete(msg.result.chunk);
+          this.deliver({ kind: 'result', result: msg.result });
+          this.feed();
+        } else {
+          const range = slot.busy!;
+          slot.busy = null;
+          this.retryOrFail(range, msg.error);
+          this.feed();
+        }
+      });
+      worker.on('error', (err) => {
+        if (!ready) reject(new TransportStartError(`a worker thread failed to start: ${err.message}`));
+        else this.lose(slot, err.message);
+      });
+      worker.on('exit', (code) => {
+        if (!ready) reject(new TransportStartError(`a worker thread exited during start-up (code ${code})`));
+        else this.lose(slot, `worker thread exited with code ${code}`);
+      });
+    });
+  }
+
+  /** A thread died: its chunk is retried elsewhere and a replacement thread is started. */
+  private lose(slot: Slot, reason: string): void {
+    if (this.closed || !this.slots.delete(slot)) return;
+    const range = slot.busy;
+    slot.busy = null;
+    if (range) this.retryOrFail(range, reason);
+    this.spawn().catch((err: Error) => {
+      if (this.slots.size === 0) {
+        for (const r of this.queue.splice(0)) this.deliver({ kind: 'failed', range: r, attempts: this.attempts.get(r.chunk) ?? 0, error: err.message });
+      }
+    });
+  }
+
+  private retryOrFail(range: ChunkRange, error: string): void {
+    const attempts = (this.attempts.get(range.chunk) ?? 0) + 1;
+    if (attempts < this.maxAttempts) {
+      this.attempts.set(range.chunk, attempts);
+      this.queue.unshift(range);
+    } else {
+      this.attempts.delete(range.chunk);
+      this.deliver({ kind: 'failed', range, attempts, error });
+    }
+  }
+
+  private feed(): void {
+    if (this.closed) return;
+    for (const slot of this.slots) {
+      if (slot.busy || this.queue.length === 0) continue;
+      const range = this.queue.shift()!;
+      slot.busy = range;
+      slot.worker.postMessage({ type: 'chunk', range });
+    }
+  }
+
+  private deliver(outcome: ChunkOutcome): void {
+    if (this.closed) return;
+    const w = this.waiter;
+    if (w) {
+      this.waiter = null;
+      w(outcome);
+    } else this.outcomes.push(outcome);
+  }
+}

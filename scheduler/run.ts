@@ -1,0 +1,341 @@
+/**
+ * The scheduler: starts or resumes a scan, dispatches pending chunks through a Transport, and is the
+ * only writer of the ledger.
+ *
+ * Order of operations, so that bad input never writes anything:
+ *   1. validate the spec and prepare its physics once here (names of the observable columns, knobs);
+ *   2. look at an existing ledger readonly and decide: resume the scan with the same name and the
+ *      same spec hash, create a new one (fresh ledger, or `--new`), or refuse (same name, different
+ *      spec, different constants edition or knobs);
+ *   3. only then open the ledger for writing.
+ * Resume is the same command again: chunks with a 'done' row are skipped, everything else runs.
+ * SIGINT/SIGTERM stop dispatching and finish the chunks in flight (a second signal abandons them);
+ * SIGKILL loses at most the chunks in flight, because each chunk commits with its 'done' mark.
+ */
+import { execFileSync } from 'node:child_process';
+import { existsSync, readFileSync } from 'node:fs';
+import path from 'node:path';
+import { CONSTANTS_EDITION } from '../physics/constants.js';
+import { InvalidInputError, type Issue } from '../physics/issue.js';
+import { ChunkEvaluator, columnLayout, loadPhysicsEngine, type PhysicsEngine, type PreparedPhysics } from './chunk.js';
+import { EmbeddedPool } from './embedded-pool.js';
+import { Ledger, LedgerReader, type ScanRecord, type ScanStatus } from './ledger.js';
+import type { ChunkRange, Plan } from './plan.js';
+import { createProgress, formatDuration, progressMode, type ProgressReporter } from './progress.js';
+import { canonicalJson, loadSpecFile, makePlan, resolvedSpecJson, specHash, type ScanSpec } from './spec.js';
+import type { Transport } from './transport.js';
+
+export interface RunOptions {
+  readonly specPath: string;
+  /** ledger file; default `<spec name>.db` in the current directory */
+  readonly dbPath?: string;
+  /** worker threads of the embedded pool; default: cores */
+  readonly workers?: number;
+  /** points per chunk for a new scan; default: about CHUNK_TARGET_MS of compute from a calibration */
+  readonly chunkSize?: number;
+  readonly quiet?: boolean;
+  /** start a new scan id even when a scan of the same name exists */
+  readonly newScan?: boolean;
+  /** module exporting prepare/evaluate (default physics/evaluate.ts); tests of the mechanics inject one */
+  readonly physicsModule?: string;
+  /** a transport other than the embedded pool (e.g. Redis); it receives `work` in open() */
+  readonly transport?: Transport;
+  /** install SIGINT/SIGTERM handlers (the CLI does) */
+  readonly handleSignals?: boolean;
+  /** where messages go; default process.stderr */
+  readonly log?: (line: string) => void;
+}
+
+export interface RunSummary {
+  readonly dbPath: string;
+  readonly scanId: number;
+  readonly scanName: string;
+  readonly status: ScanStatus;
+  readonly resumed: boolean;
+  readonly pointsTotal: number;
+  readonly pointsDone: number;
+  readonly pointsThisRun: number;
+  readonly chunksFailed: number;
+  readonly erroredPoints: number;
+  readonly elapsedMs: number;
+  /** the command that resumes this scan */
+  readonly resumeCommand: string;
+}
+
+/** Target compute per chunk: long enough that dispatch overhead is negligible, short enough that a crash loses little. */
+export const CHUNK_TARGET_MS = 1500;
+export const MIN_CHUNK = 8;
+export const MAX_CHUNK = 20_000;
+
+/** Package version plus the git commit of the sources, when they are in a git work tree. */
+export function codeVersion(): string {
+  const root = new URL('..', import.meta.url);
+  const pkg = JSON.parse(readFileSync(new URL('package.json', root), 'utf8')) as { version: string };
+  try {
+    const commit = execFileSync('git', ['rev-parse', '--short=12', 'HEAD'], { cwd: root, stdio: ['ignore', 'pipe', 'ignore'], timeout: 3000 })
+      .toString()
+      .trim();
+    return `${pkg.version}+${commit}`;
+  } catch {
+    return pkg.version;
+  }
+}
+
+/** Prepares the physics of a spec in this process; a refusal becomes an input issue. */
+export function preparePhysics(spec: ScanSpec, engine: PhysicsEngine): PreparedPhysics {
+  try {
+    return engine.prepare(spec.setup);
+  } catch (err) {
+    if (err instanceof InvalidInputError) throw err;
+    const message = err instanceof Error ? err.message : String(err);
+    throw new InvalidInputError([{ code: 'physics_setup', path: 'detectors/targets/halo', message: `the physics cannot prepare this scan: ${message}`, allowed: 'detectors, targets and halo the physics supports' }]);
+  }
+}
+
+export interface Calibration {
+  readonly points: number;
+  readonly msPerPoint: number;
+  readonly errors: number;
+}
+
+/** Times real evaluations of points spread over the scan (after one warm-up point). */
+export async function calibrate(spec: ScanSpec, engine: PhysicsEngine, budgetMs = 600, maxPoints = 24): Promise<Calibration> {
+  const evaluator = await ChunkEvaluator.create(resolvedSpecJson(spec), engine);
+  const total = evaluator.totalPoints;
+  const ids = Array.from({ length: Math.min(maxPoints, total) }, (_, k) => Math.floor(((k + 0.5) * total) / Math.min(maxPoints, total)));
+  evaluator.evaluate({ chunk: 0, firstId: ids[0]!, n: 1 });
+  let points = 0;
+  let errors = 0;
+  let ms = 0;
+  for (const id of ids) {
+    const r = evaluator.evaluate({ chunk: 0, firstId: id, n: 1 });
+    ms += r.evalMs;
+    points++;
+    if (String(r.columns[r.columns.length - 1]![0]).includes('error=')) errors++;
+    if (ms > budgetMs) break;
+  }
+  return { points, msPerPoint: ms / points, errors };
+}
+
+/** Chunk size giving about CHUNK_TARGET_MS per chunk, and at least 4 chunks per worker when possible. */
+export function chooseChunkSize(msPerPoint: number, totalPoints: number, workers: number): number {
+  const byTime = Math.round(CHUNK_TARGET_MS / Math.max(msPerPoint, 1e-3));
+  const bySpread = Math.ceil(totalPoints / (4 * workers));
+  return Math.max(MIN_CHUNK, Math.min(MAX_CHUNK, byTime, bySpread));
+}
+
+function refuse(issue: Issue): never {
+  throw new InvalidInputError([issue]);
+}
+
+interface Decision {
+  readonly existing: ScanRecord | null;
+  readonly warnings: string[];
+}
+
+/** Step 2: decides on a readonly view whether to resume, create, or refuse. */
+function decide(dbPath: string, spec: ScanSpec, hash: string, knobsJson: string, version: string, newScan: boolean): Decision {
+  if (!existsSync(dbPath)) return { existing: null, warnings: [] };
+  let reader: LedgerReader;
+  try {
+    reader = LedgerReader.openReadonly(dbPath);
+  } catch (err) {
+    refuse({ code: 'ledger_unreadable', path: '--db', message: `cannot open ${dbPath} as a ledger: ${(err as Error).message}`, seen: dbPath, allowed: 'a darksieve ledger or a new file name' });
+  }
+  try {
+    let named: ScanRecord[];
+    try {
+      named = reader.scansNamed(spec.name);
+    } catch (err) {
+      refuse({ code: 'ledger_unreadable', path: '--db', message: `${dbPath} is not a darksieve ledger: ${(err as Error).message}`, seen: dbPath, allowed: 'a darksieve ledger or a new file name' });
+    }
+    if (newScan) return { existing: null, warnings: [] };
+    const match = [...named].reverse().find((s) => s.specHash === hash);
+    if (!match) {
+      if (named.length === 0) return { existing: null, warnings: [] };
+      const last = named[named.length - 1]!;
+      refuse({
+        code: 'spec_changed', path: 'name',
+        message: `${dbPath} already holds scan '${spec.name}' (id ${last.id}) made from a different spec (hash ${last.specHash.slice(0, 12)}, this spec ${hash.slice(0, 12)}); results are never mixed. Use --new to start another scan under this name, or another --db or name`,
+        seen: spec.name, allowed: 'the same spec as before, --new, another --db, or another name',
+      });
+    }
+    if (match.constantsEdition !== CONSTANTS_EDITION)
+      refuse({ code: 'constants_changed', path: '--db', message: `scan '${spec.name}' (id ${match.id}) was computed with constants ${match.constantsEdition}, this code has ${CONSTANTS_EDITION}; resuming would mix them. Use --new or another --db`, seen: CONSTANTS_EDITION, allowed: match.constantsEdition });
+    if (canonicalJson(JSON.parse(match.knobsJson)) !== canonicalJson(JSON.parse(knobsJson)))
+      refuse({ code: 'knobs_changed', path: '--db', message: `scan '${spec.name}' (id ${match.id}) was computed with other numerical knobs; resuming would mix them. Use --new or another --db`, seen: knobsJson, allowed: match.knobsJson });
+    const warnings = match.codeVersion !== version ? [`note: scan ${match.id} was started by code ${match.codeVersion}; resuming with ${version}`] : [];
+    return { existing: match, warnings };
+  } finally {
+    reader.close();
+  }
+}
+
+/** Pending chunks in id order: every chunk without a 'done' row, read page by page (bounded memory). */
+export function* pendingChunks(reader: LedgerReader, scanId: number, plan: Plan, pageSize = 4096): Generator<ChunkRange> {
+  let page: number[] = [];
+  let at = 0;
+  let exhausted = false;
+  for (let c = 0; c < plan.chunkCount; c++) {
+    for (;;) {
+      while (at < page.length && page[at]! < c) at++;
+      if (at < page.length || exhausted) break;
+      page = reader.doneChunks(scanId, c, pageSize);
+      at = 0;
+      exhausted = page.length < pageSize;
+    }
+    if (at < page.length && page[at] === c) continue;
+    yield plan.chunkRange(c);
+  }
+}
+
+function shellQuote(arg: string): string {
+  return /^[A-Za-z0-9_./=:-]+$/.test(arg) ? arg : `'${arg.replace(/'/g, `'\\''`)}'`;
+}
+
+export async function runScan(options: RunOptions): Promise<RunSummary> {
+  const started = performance.now();
+  const log = options.log ?? ((line: string) => process.stderr.write(`${line}\n`));
+  if (options.chunkSize !== undefined && (!Number.isInteger(options.chunkSize) || options.chunkSize < 1 || options.chunkSize > 1e7))
+    refuse({ code: 'out_of_range', path: '--chunk', message: 'chunk size must be an integer from 1 to 10000000', seen: String(options.chunkSize), allowed: '1 to 10000000' });
+  if (options.workers !== undefined && (!Number.isInteger(options.workers) || options.workers < 1 || options.workers > 1024))
+    refuse({ code: 'out_of_range', path: '--workers', message: 'workers must be an integer from 1 to 1024', seen: String(options.workers), allowed: '1 to 1024' });
+
+  // 1. validate and prepare (nothing written yet)
+  const spec = loadSpecFile(options.specPath);
+  const engine = await loadPhysicsEngine(options.physicsModule);
+  const prepared = preparePhysics(spec, engine);
+  const resolved = resolvedSpecJson(spec);
+  const hash = specHash(resolved);
+  const knobsJson = canonicalJson(prepared.knobs ?? {});
+  const version = codeVersion();
+  const dbPath = path.resolve(options.dbPath ?? `${spec.name}.db`);
+
+  // 2. decide on a readonly view
+  const decision = decide(dbPath, spec, hash, knobsJson, version, options.newScan ?? false);
+  decision.warnings.forEach(log);
+
+  const transport = options.transport ?? new EmbeddedPool({ workers: options.workers, physicsModule: options.physicsModule });
+  const workers = options.transport ? 1 : (transport as EmbeddedPool).workers;
+  let chunkSize: number;
+  if (decision.existing) {
+    chunkSize = decision.existing.chunkSize;
+    if (options.chunkSize !== undefined && options.chunkSize !== chunkSize)
+      log(`note: scan ${decision.existing.id} was planned with ${chunkSize} points per chunk; resuming keeps that (--chunk ${options.chunkSize} ignored)`);
+  } else if (options.chunkSize !== undefined) {
+    chunkSize = options.chunkSize;
+  } else {
+    const cal = await calibrate(spec, engine);
+    chunkSize = chooseChunkSize(cal.msPerPoint, makePlan(spec, 1).total, workers);
+  }
+  const plan = makePlan(spec, chunkSize);
+
+  // 3. write
+  const ledger = Ledger.open(dbPath);
+  let progress: ProgressReporter | null = null;
+  const removeSignals: (() => void)[] = [];
+  try {
+    const scan =
+      decision.existing ??
+      ledger.createScan({
+        name: spec.name, specJson: resolved, specHash: hash, codeVersion: version, constantsEdition: CONSTANTS_EDITION,
+        knobsJson, observables: prepared.observableNames, nPoints: plan.total, chunkSize, nChunks: plan.chunkCount,
+      });
+    ledger.setStatus(scan.id, 'running');
+    const write = ledger.chunkWriter(scan.id, columnLayout(prepared.observableNames));
+    const before = ledger.progress(scan.id);
+    const resumeArgs = ['darksieve', 'run', options.specPath, '--db', dbPath, ...(options.workers ? ['--workers', String(options.workers)] : [])];
+    const resumeCommand = resumeArgs.map(shellQuote).join(' ');
+    log(
+      `${decision.existing ? 'resuming' : 'starting'} scan '${spec.name}' (id ${scan.id}) in ${dbPath}: ${plan.total} points in ${plan.chunkCount} chunks of ${chunkSize}` +
+        `${before.chunksDone > 0 ? `, ${before.chunksDone} chunks already done` : ''}; ${transport.description}`,
+    );
+
+    // signals: first = finish in-flight chunks, second = abandon them
+    let stopping = false;
+    let abandon: () => void = () => {};
+    const abandoned = new Promise<'abandon'>((resolve) => {
+      abandon = () => resolve('abandon');
+    });
+    if (options.handleSignals) {
+      const onSignal = (sig: NodeJS.Signals): void => {
+        if (!stopping) {
+          stopping = true;
+          progress?.note(`${sig}: finishing the chunks in flight, then stopping (again to abandon them)`);
+        } else abandon();
+      };
+      for (const sig of ['SIGINT', 'SIGTERM'] as const) {
+        process.on(sig, onSignal);
+        removeSignals.push(() => process.off(sig, onSignal));
+      }
+    }
+
+    await transport.open({ scanKey: `s${scan.id}-${hash.slice(0, 12)}`, resolvedSpecJson: resolved, observableNames: prepared.observableNames });
+    progress = createProgress(progressMode(options.quiet ?? false));
+    progress.start(plan.total, before.pointsDone);
+    let pointsDone = before.pointsDone;
+    let pointsThisRun = 0;
+    let wasAbandoned = false;
+    try {
+      const pending = pendingChunks(ledger, scan.id, plan);
+      let inFlight = 0;
+      const fill = (): void => {
+        while (!stopping && inFlight < transport.window) {
+          const next = pending.next();
+          if (next.done) break;
+          transport.dispatch(next.value);
+          inFlight++;
+        }
+      };
+      fill();
+      while (inFlight > 0) {
+        const outcome = await Promise.race([transport.next(), abandoned]);
+        if (outcome === 'abandon') {
+          wasAbandoned = true;
+          break;
+        }
+        inFlight--;
+        if (outcome.kind === 'result') {
+          write(outcome.result);
+          pointsDone += outcome.result.n;
+          pointsThisRun += outcome.result.n;
+          progress.update(pointsDone);
+        } else {
+          ledger.markChunkFailed(scan.id, outcome.range.chunk, outcome.range.firstId, outcome.range.n, outcome.attempts, outcome.error);
+          progress.note(`chunk ${outcome.range.chunk} failed after ${outcome.attempts} attempts: ${outcome.error}`);
+        }
+        fill();
+      }
+    } finally {
+      progress.stop();
+      await transport.close();
+    }
+
+    const after = ledger.progress(scan.id);
+    const complete = after.chunksDone === plan.chunkCount;
+    const status: ScanStatus = complete ? 'done' : stopping || wasAbandoned ? 'interrupted' : 'incomplete';
+    ledger.setStatus(scan.id, status);
+    ledger.checkpoint();
+    const summary: RunSummary = {
+      dbPath, scanId: scan.id, scanName: spec.name, status, resumed: decision.existing !== null,
+      pointsTotal: plan.total, pointsDone: after.pointsDone, pointsThisRun, chunksFailed: after.chunksFailed,
+      erroredPoints: ledger.erroredPoints(scan.id), elapsedMs: performance.now() - started, resumeCommand,
+    };
+    return summary;
+  } finally {
+    removeSignals.forEach((f) => f());
+    ledger.close();
+  }
+}
+
+/** Human summary of a run (the run and demo commands print it). */
+export function describeRun(s: RunSummary): string[] {
+  const lines = [
+    `scan '${s.scanName}' (id ${s.scanId}): ${s.status}; ${s.pointsDone}/${s.pointsTotal} points stored, ${s.pointsThisRun} this run in ${formatDuration(s.elapsedMs / 1000)}`,
+  ];
+  if (s.erroredPoints > 0) lines.push(`${s.erroredPoints} points could not be evaluated; their flags hold the error`);
+  if (s.chunksFailed > 0) lines.push(`${s.chunksFailed} chunks failed; run the same command again to retry them`);
+  if (s.status !== 'done') lines.push(`resume with: ${s.resumeCommand}`);
+  lines.push(`ledger: ${s.dbPath}`);
+  return lines;
+}

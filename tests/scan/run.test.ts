@@ -1,0 +1,126 @@
+/**
+ * Scheduler mechanics in-process on real SQLite files, with the deterministic stand-in physics of
+ * fake-physics.ts (fast): completeness, flagged errors, bit-identity across workers and chunk sizes,
+ * resume, refusal of a changed spec, and validation that writes nothing.
+ */
+import { readFileSync, writeFileSync } from 'node:fs';
+import path from 'node:path';
+import Database from 'better-sqlite3';
+import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { InvalidInputError } from '../../physics/issue.js';
+import { runScan, type RunOptions } from '../../scheduler/run.js';
+import { FAKE_PHYSICS, pointRows, query, tempDir, writeSpec } from './helpers.js';
+import { MALFORMED, malformed } from './malformed-specs.js';
+
+const spec = {
+  name: 'mech',
+  model: { dm: 'majorana', mediator: 'axial' },
+  axes: {
+    m_chi: { from: 10, to: 1000, steps: 12, spacing: 'log' },
+    mediator: { values: ['vector', 'scalar'] },
+    g_q: { from: 0.1, to: 1.0, steps: 5 },
+  },
+  detectors: [{ name: 'xe_fake', target: 'Xe', windowKeV: [5, 40], efficiency: 0.5, exposureKgDay: 1000 }],
+};
+// the model fixes mediator while an axis scans it: drop it from the model
+delete (spec.model as Record<string, unknown>).mediator;
+
+const TOTAL = 12 * 2 * 5;
+let tmp: ReturnType<typeof tempDir>;
+let specFile: string;
+const silent = (): void => {};
+const run = (extra: Partial<RunOptions>) =>
+  runScan({ specPath: specFile, physicsModule: FAKE_PHYSICS, quiet: true, log: silent, workers: 2, chunkSize: 16, ...extra });
+
+beforeAll(() => {
+  tmp = tempDir();
+  specFile = writeSpec(tmp.dir, 'mech.json', spec);
+});
+afterAll(() => tmp.cleanup());
+
+describe('run on the embedded pool', () => {
+  let reference: string[][];
+
+  it('stores every point, errors flagged, NaN as NULL', async () => {
+    const db = path.join(tmp.dir, 'ref.db');
+    const s = await run({ dbPath: db, workers: 1, chunkSize: 16 });
+    expect(s.status).toBe('done');
+    expect(s.pointsDone).toBe(TOTAL);
+    reference = pointRows(db);
+    expect(reference.length).toBe(TOTAL);
+    const flagged = query<{ flags: string; omega_h2: number | null }>(db, `SELECT flags, omega_h2 FROM points WHERE flags LIKE 'error=%'`);
+    // g_q = 1.0 is the last of 5 steps: 12 * 2 points throw in the fake physics
+    expect(flagged.length).toBe(24);
+    expect(flagged[0]!.flags).toMatch(/^error=fake physics refuses g_q = 1; by design$/);
+    expect(flagged[0]!.omega_h2).toBeNull();
+    expect(s.erroredPoints).toBe(24);
+    const nulls = query<{ n: number }>(db, `SELECT COUNT(*) AS n FROM points WHERE sigv_fo_cm3s IS NULL AND flags NOT LIKE 'error=%'`);
+    expect(nulls[0]!.n).toBeGreaterThan(0);
+    const scan = query<Record<string, unknown>>(db, 'SELECT * FROM scans')[0]!;
+    expect(scan).toMatchObject({ name: 'mech', status: 'done', n_points: TOTAL, chunk_size: 16, n_chunks: 8, knobs_json: '{"fake":1}' });
+    expect(String(scan.constants_edition)).toContain('CODATA');
+    expect(String(scan.code_version)).toMatch(/^0\.1\.0/);
+    const m = query<{ m_chi: number; mediator: string; dm: string; g_q: number }>(db, 'SELECT m_chi, mediator, dm, g_q FROM points WHERE point_id = 11')[0]!;
+    // id 11 = digits (1, 0, 1) in radix (12, 2, 5): m_chi step 1, mediator 'vector', g_q step 1
+    expect(m).toEqual({ m_chi: 10 * Math.pow(100, 1 / 11), mediator: 'vector', dm: 'majorana', g_q: 0.1 + 0.9 * 0.25 });
+    const journal = new Database(db, { readonly: true });
+    expect(journal.pragma('journal_mode', { simple: true })).toBe('wal');
+    journal.close();
+  });
+
+  it('gives bit-identical rows on 2 workers and other chunk sizes', async () => {
+    for (const [workers, chunkSize] of [[2, 16], [2, 7], [1, 120]] as const) {
+      const db = path.join(tmp.dir, `w${workers}-c${chunkSize}.db`);
+      await run({ dbPath: db, workers, chunkSize });
+      expect(pointRows(db), `workers ${workers}, chunk ${chunkSize}`).toEqual(reference);
+    }
+  });
+
+  it('resumes only the chunks not done and ends equal to an uninterrupted run', async () => {
+    const db = path.join(tmp.dir, 'resume.db');
+    await run({ dbPath: db });
+    // lose chunks 2, 5 and 6 as a crash in flight would: their rows and done marks never committed
+    const w = new Database(db);
+    w.prepare('DELETE FROM points WHERE point_id >= 32 AND point_id < 48 OR point_id >= 80 AND point_id < 112').run();
+    w.prepare('DELETE FROM chunks WHERE chunk IN (2, 5, 6)').run();
+    w.close();
+    const s = await run({ dbPath: db, chunkSize: 99 });
+    expect(s.resumed).toBe(true);
+    expect(s.pointsThisRun).toBe(48);
+    expect(pointRows(db)).toEqual(reference);
+    const again = await run({ dbPath: db });
+    expect(again.pointsThisRun).toBe(0);
+  });
+
+  it('refuses a changed spec under the same name, leaving the ledger unchanged; --new makes a new scan', async () => {
+    const db = path.join(tmp.dir, 'ref.db');
+    const before = readFileSync(db);
+    // the changed spec also ties m_med to m_chi through an equals axis (workers then load the sandbox)
+    const changed = writeSpec(tmp.dir, 'changed.json', { ...spec, axes: { ...spec.axes, g_q: { from: 0.1, to: 0.9, steps: 5 }, m_med: { equals: '3 * m_chi' } } });
+    const err = await runScan({ specPath: changed, dbPath: db, physicsModule: FAKE_PHYSICS, quiet: true, log: silent }).catch((e: unknown) => e);
+    expect(err).toBeInstanceOf(InvalidInputError);
+    expect((err as InvalidInputError).issues[0]!.path).toBe('name');
+    expect((err as InvalidInputError).message).toMatch(/different spec.*--new/);
+    expect(readFileSync(db).equals(before)).toBe(true);
+    const s = await runScan({ specPath: changed, dbPath: db, physicsModule: FAKE_PHYSICS, quiet: true, log: silent, newScan: true, workers: 1, chunkSize: 50 });
+    expect(s.scanId).toBe(2);
+    expect(pointRows(db, 1)).toEqual(reference);
+    expect(pointRows(db, 2).length).toBe(TOTAL);
+    const tied = query<{ m_chi: number; m_med: number }>(db, 'SELECT m_chi, m_med FROM points WHERE scan_id = 2');
+    for (const r of tied) expect(r.m_med).toBe(3 * r.m_chi);
+  });
+
+  it('every malformed spec is refused with its field named and an existing ledger left byte for byte', async () => {
+    const db = path.join(tmp.dir, 'ref.db');
+    const before = readFileSync(db);
+    for (const c of MALFORMED) {
+      const file = path.join(tmp.dir, 'bad.json');
+      writeFileSync(file, JSON.stringify(malformed(c)));
+      const err = await runScan({ specPath: file, dbPath: db, physicsModule: FAKE_PHYSICS, quiet: true, log: silent }).catch((e: unknown) => e);
+      expect(err, c.what).toBeInstanceOf(InvalidInputError);
+      const paths = (err as InvalidInputError).issues.map((i) => i.path);
+      expect(paths.some((p) => p.startsWith(c.path)), `${c.what}: ${paths.join(', ')}`).toBe(true);
+      expect(readFileSync(db).equals(before), c.what).toBe(true);
+    }
+  });
+});

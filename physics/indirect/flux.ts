@@ -17,25 +17,32 @@
 import { GEV2_TO_CM3S } from '../constants.js';
 import { bandCount, cascadeBandCount, spectrumBreaks, spectrumOf, type YieldSource } from './yields.js';
 
-/** Entries kept in the photon-count memo before the oldest are dropped (numerical knob). */
-export const PHOTON_MEMO_ENTRIES = 8192;
+/** Dark-matter masses kept in the photon-count memo before the oldest is dropped (numerical knob). */
+export const PHOTON_MEMO_MASSES = 4096;
 
-/** A bounded memo (insertion-ordered; the oldest entry goes first when full). */
+/**
+ * A bounded memo of photon counts, keyed first by the dark-matter mass (a number key: no string
+ * formatting of doubles on the hot path), then by a short string naming target, spectrum and, for
+ * cascades, the mediator mass. Insertion-ordered: the oldest mass goes first when full.
+ */
 export class PhotonMemo {
-  private readonly map = new Map<string, number>();
-  constructor(private readonly capacity: number = PHOTON_MEMO_ENTRIES) {}
+  private readonly byMass = new Map<number, Map<string, number>>();
+  constructor(private readonly capacity: number = PHOTON_MEMO_MASSES) {}
+  /** number of masses held */
   get size(): number {
-    return this.map.size;
+    return this.byMass.size;
   }
-  get(key: string, compute: () => number): number {
-    const hit = this.map.get(key);
+  get(mChiGeV: number, key: string, compute: () => number): number {
+    let inner = this.byMass.get(mChiGeV);
+    const hit = inner?.get(key);
     if (hit !== undefined) return hit;
     const value = compute();
-    if (this.map.size >= this.capacity) {
-      const oldest = this.map.keys().next().value as string;
-      this.map.delete(oldest);
+    if (inner === undefined) {
+      if (this.byMass.size >= this.capacity) this.byMass.delete(this.byMass.keys().next().value as number);
+      inner = new Map();
+      this.byMass.set(mChiGeV, inner);
     }
-    this.map.set(key, value);
+    inner.set(key, value);
     return value;
   }
 }
@@ -53,7 +60,7 @@ export interface Band {
 export function directPhotons(
   memo: PhotonMemo, tag: string, source: YieldSource & { readonly key: string }, mChiGeV: number, band: Band,
 ): number {
-  return memo.get(`${tag}|${source.key}|${mChiGeV}`, () =>
+  return memo.get(mChiGeV, `${tag}|${source.key}`, () =>
     bandCount(spectrumOf(source, mChiGeV), band.loGeV / mChiGeV, band.hiGeV / mChiGeV, spectrumBreaks(source, mChiGeV)));
 }
 
@@ -64,7 +71,7 @@ export function directPhotons(
 export function cascadePhotons(
   memo: PhotonMemo, tag: string, decay: YieldSource & { readonly key: string }, mChiGeV: number, mMedGeV: number, band: Band,
 ): number {
-  return memo.get(`${tag}|casc:${decay.key}|${mChiGeV}|${mMedGeV}`, () => {
+  return memo.get(mChiGeV, `${tag}|casc:${decay.key}|${mMedGeV}`, () => {
     const ratio = mMedGeV / mChiGeV;
     const beta = Math.sqrt((1 - ratio) * (1 + ratio));
     const half = mMedGeV / 2;

@@ -31,14 +31,14 @@ import { C_KM_S } from '../constants.js';
 import { gaussLaguerre, integrate } from '../numerics/quadrature.js';
 
 /** Nodes of the fast Gauss-Laguerre rule (numerical knob). */
-export const FAST_NODES = 24;
+export const FAST_NODES = 16;
 /** Nodes of the check rule compared with the fast rule (numerical knob). */
-export const CHECK_NODES = 12;
+export const CHECK_NODES = 8;
 /** Largest relative difference between the two rules accepted on the fast path (numerical knob). */
 export const CHECK_REL_TOL = 1e-8;
 /**
  * Poles and thresholds closer than this to tau = 0 (in units of w^2, |complex tau| for poles) send
- * the average to the adaptive path (numerical knob). The 24-node rule spans tau < ~80.
+ * the average to the adaptive path (numerical knob). The 16-node rule spans tau < ~50.
  */
 export const CLEARANCE_W2 = 300;
 /** Upper end of the adaptive v integral in units of w: e^{-100} of the weight is left out. */

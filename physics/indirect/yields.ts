@@ -39,7 +39,7 @@ export const PI0_MASS_GEV = 0.1349768;
 export const ALPHA_EM = 1 / 137.035999084;
 
 /** Relative tolerance of the band integrals of the yields (numerical knob). */
-export const YIELD_REL_TOL = 1e-9;
+export const YIELD_REL_TOL = 1e-8;
 
 /** Below this boost velocity a cascade is treated as decays at rest (relative error ~beta^2). */
 const CASCADE_BETA_AT_REST = 1e-6;

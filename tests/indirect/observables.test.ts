@@ -108,10 +108,11 @@ describe('per-scan cache', () => {
     expect(fresh.fluxByTarget).toEqual(miss.fluxByTarget);
     expect(Object.is(hit.fluxByTarget[0], fresh.fluxByTarget[0])).toBe(true);
     const memo = new PhotonMemo(3);
-    for (let i = 0; i < 10; i++) memo.get(`k${i}`, () => i);
+    for (let i = 0; i < 10; i++) memo.get(i, 'k', () => i);
     expect(memo.size).toBe(3);
-    expect(memo.get('k9', () => -1)).toBe(9);
-    expect(memo.get('k0', () => -1)).toBe(-1);
+    expect(memo.get(9, 'k', () => -1)).toBe(9);
+    expect(memo.get(0, 'k', () => -1)).toBe(-1);
+    expect(memo.size).toBe(3);
   });
 });
 

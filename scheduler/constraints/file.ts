@@ -62,9 +62,11 @@ export function loadConstraintsFile(file: string): ConstraintsFile {
   const r = constraintsFileSchema.safeParse(raw, { reportInput: true });
   if (!r.success) {
     const rawList = raw && typeof raw === 'object' ? (raw as Record<string, unknown>).constraints : undefined;
-    const issues = issuesFromZod(r.error).map((i) =>
-      i.code === 'unknown_key' && !i.path.includes('.') && !i.path.includes('[') ? { ...i, allowed: 'set, constraints' } : i,
-    );
+    const issues = issuesFromZod(r.error).map((i) => {
+      if (i.path === '') return { ...i, path: '--constraints', allowed: '{"set"?: NAME, "constraints": [...]}' };
+      if (i.code === 'unknown_key' && !i.path.includes('.') && !i.path.includes('[')) return { ...i, allowed: 'set, constraints' };
+      return i;
+    });
     throw new InvalidInputError(refineConstraintIssues(issues, rawList));
   }
   return { ...(r.data.set !== undefined ? { set: r.data.set } : {}), constraints: r.data.constraints, baseDir: path.dirname(path.resolve(file)) };

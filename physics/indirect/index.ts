@@ -24,11 +24,28 @@ import { InvalidInputError, type Issue } from '../issue.js';
 import type { ModelPoint } from '../model.js';
 import type { ScanPhysicsSetup, Target } from '../setup.js';
 import { mediatorWidth } from '../widths.js';
-import { cascadePhotons, directPhotons, photonFluxCm2s, PhotonMemo, type Band } from './flux.js';
-import { coneJFactor } from './jfactor.js';
-import { galacticDensity, satelliteDensity } from './profiles.js';
-import { maxwellAverage, relativeVelocityScale, type VelocityAverage } from './velocity-average.js';
-import { checkYieldTables, yieldSourceFor, type YieldTable } from './yields.js';
+import { cascadePhotons, directPhotons, photonFluxCm2s, PhotonMemo, PHOTON_MEMO_MASSES, type Band } from './flux.js';
+import { CONE_REL_TOL, coneJFactor, J_MAX_INTERVALS, LOS_REL_TOL } from './jfactor.js';
+import { EINASTO_ALPHA_DEFAULT, GALACTIC_OUTER_RADIUS_KPC, galacticDensity, satelliteDensity, UNTRUNCATED_OUTER_RADIUS_RS } from './profiles.js';
+import {
+  ADAPTIVE_MAX_INTERVALS, ADAPTIVE_REL_TOL, CHECK_NODES, CHECK_REL_TOL, CLEARANCE_W2, FAST_NODES,
+  maxwellAverage, relativeVelocityScale, V_MAX_W, type VelocityAverage,
+} from './velocity-average.js';
+import { checkYieldTables, YIELD_REL_TOL, yieldSourceFor, type YieldTable } from './yields.js';
+
+/** Numerical knobs and defaults of the indirect stage, for each scan's provenance. */
+export const INDIRECT_KNOBS = Object.freeze({
+  velocityAverage: Object.freeze({
+    fastNodes: FAST_NODES, checkNodes: CHECK_NODES, checkRelTol: CHECK_REL_TOL, clearanceW2: CLEARANCE_W2,
+    vMaxW: V_MAX_W, adaptiveRelTol: ADAPTIVE_REL_TOL, adaptiveMaxIntervals: ADAPTIVE_MAX_INTERVALS,
+  }),
+  jFactor: Object.freeze({
+    losRelTol: LOS_REL_TOL, coneRelTol: CONE_REL_TOL, maxIntervals: J_MAX_INTERVALS,
+    galacticOuterRadiusKpc: GALACTIC_OUTER_RADIUS_KPC, untruncatedOuterRadiusRs: UNTRUNCATED_OUTER_RADIUS_RS,
+    einastoAlphaDefault: EINASTO_ALPHA_DEFAULT,
+  }),
+  yields: Object.freeze({ relTol: YIELD_REL_TOL, photonMemoMasses: PHOTON_MEMO_MASSES }),
+});
 
 /** Name of the mediator-pair channel in the Annihilation contract (physics/annihilation.ts). */
 const MEDIATOR_PAIR = 'med_med';

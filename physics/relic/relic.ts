@@ -47,10 +47,9 @@ export interface RelicResult {
 /** Numerical knobs of the relic stage (not physics inputs). */
 export interface RelicKnobs {
   readonly laguerreNodes: number;
-  readonly legendreNodes: number;
   readonly tMax: number;
   readonly quadRelTol: number;
-  readonly poleWindowWidths: number;
+  readonly poleCoreWidths: number;
   readonly tableNodesPerDecade: number;
   readonly tableStartFraction: number;
   readonly tableXMax: number;
@@ -78,24 +77,19 @@ export const RELIC_KNOBS: readonly KnobSpec[] = Object.freeze([
     why: 'the integrand over the weight is smooth (s-wave 1/beta absorbed by the weight); 16 nodes give <1e-7 for x >= 3',
   },
   {
-    name: 'legendreNodes', default: 24, min: 4, max: 256, integer: true,
-    doc: 'Gauss-Legendre nodes per piece of the thermal average between thresholds and pole windows',
-    why: 'after the square-root map each piece is smooth; 24 nodes reach ~1e-8 on pieces up to t = 60',
-  },
-  {
     name: 'tMax', default: 60, min: 30, max: 400, integer: false,
-    doc: 'upper cut of t = (sqrt(s) - 2m)/T in the adaptive thermal average',
+    doc: 'upper cut of t = (sqrt(s) - 2m)/T in the piecewise thermal average',
     why: 'the weight is e^{-t}: e^{-100} times polynomial growth is far below double precision',
   },
   {
     name: 'quadRelTol', default: 1e-5, min: 1e-13, max: 1e-3, integer: false,
-    doc: 'relative tolerance of the adaptive Gauss-Kronrod pieces near poles and thresholds',
-    why: 'well below the 1e-3 solver error; tighter costs evaluations near narrow poles',
+    doc: 'relative tolerance of the adaptive Gauss-Kronrod over the mapped pieces near poles and thresholds',
+    why: 'well below the 1e-3 solver error; the mapped pieces usually converge on the first pass',
   },
   {
-    name: 'poleWindowWidths', default: 200, min: 5, max: 1e4, integer: false,
-    doc: 'half-width, in M Gamma units of s, of the tan-mapped window around each pole',
-    why: 'relic.md §2.4: N = 200 puts the Breit-Wigner wings outside the window below 1/N^2 of the peak',
+    name: 'poleCoreWidths', default: 2, min: 0.5, max: 20, integer: false,
+    doc: 'half-width of the tan-mapped core around a pole, in units of the pole half-width w in t = (sqrt(s) - 2m)/T',
+    why: 'the tan map is singular at theta = +-pi/2; a core of +-2w keeps that 0.46 rad outside the core, so one G7-K15 pass converges; log-mapped wings take over beyond',
   },
   {
     name: 'tableNodesPerDecade', default: 8, min: 2, max: 200, integer: true,
@@ -178,10 +172,9 @@ export function relicAbundance(ann: Annihilation, dm: DmKind, knobOverrides?: Pa
   }
   const tk: ThermalAverageKnobs = {
     laguerreNodes: knobs.laguerreNodes,
-    legendreNodes: knobs.legendreNodes,
     tMax: knobs.tMax,
     relTol: knobs.quadRelTol,
-    poleWindowWidths: knobs.poleWindowWidths,
+    poleCoreWidths: knobs.poleCoreWidths,
   };
   const noAnnihilation = (): RelicResult => Object.freeze({ omegaH2: NaN, xF: NaN, sigvFoCm3s: 0, flags: Object.freeze(['no_annihilation']) });
 

@@ -14,18 +14,28 @@
  * at every x (relic.md §2.1). Units: GeV^-2.
  *
  * Method per x:
- *  - Smooth case (no channel threshold and no s-channel pole with t < tMax): generalized
+ *  - Smooth case (no channel threshold in [0, tMax] and no s-channel pole close to it): generalized
  *    Gauss-Laguerre with weight t^{1/2} e^{-t} (laguerreNodes nodes). An s-wave sigma ~ 1/beta makes
  *    F ~ sqrt(t) e^{-t}, so F / (sqrt(t) e^{-t}) is smooth and the rule converges exponentially.
- *  - Otherwise (Griest & Seckel 1991, PRD 43, 3191, exceptions ii and iii; relic.md §2.4):
- *    [0, tMax] is cut at every threshold and at the ends of a window |s - M^2| < poleWindowWidths M
- *    Gamma around every pole. Inside a window s = M^2 + M Gamma tan(theta) absorbs the Breit-Wigner
- *    peak (smooth integrand in theta for any Gamma); every piece that starts at a square-root edge
- *    (t = 0 or a threshold) is mapped by u -> a + u^2 to remove the edge. Pieces inside a pole
- *    window, and the pieces bordering one (Breit-Wigner wings), are integrated by adaptive
- *    Gauss-Kronrod (physics/numerics/quadrature.ts) to relTol (the e^{-t} factor can be sharp in
- *    theta at large x); the others are smooth after the map and take a fixed legendreNodes-point
- *    Gauss-Legendre rule.
+ *  - Otherwise (Griest & Seckel 1991, PRD 43, 3191, exceptions ii and iii; relic.md §2.4): a pole
+ *    of mass M and width Gamma puts complex singularities of F at s = M^2 +- i M Gamma, i.e. at
+ *    t = t_p +- i w with sqrt(s) = M sqrt(1 +- i Gamma/M) solved exactly. [0, tMax] is cut into
+ *    pieces on each of which the integrand is smooth on the piece's own scale, and every piece is
+ *    mapped so that a fixed-order rule converges fast (geometric grading towards a near
+ *    singularity, as in hp finite elements: Babuska & Guo 1986, and the sinh/log maps for nearly
+ *    singular integrals, Johnston & Elliott 2005, Math. Comp. 74, 1127 [memory]):
+ *      core  |t - t_p| < poleCoreWidths * w: s = M^2 + M Gamma tan(theta) absorbs the Breit-Wigner
+ *            peak exactly (relic.md §2.4), used only while the core is narrower than the thermal
+ *            scale (|Delta t| < 1), so e^{-t} stays smooth in theta;
+ *      wings poleCoreWidths * w < |t - t_p| < 1: t = t_p +- w e^v (the 1/(t - t_p)^2 fall-off is
+ *            smooth in v), split into chunks of length <= WING_CHUNK in v;
+ *      plain pieces beyond, with breakpoints at t_p +- R 4^k (R = max(1, poleCoreWidths * w)), so
+ *            that every piece ends at least a third of its length away from the singularity; a
+ *            broad pole (poleCoreWidths * w >= 1) gets no core or wings, only a cut at t_p.
+ *    Thresholds cut the range too. A piece that starts at a square-root edge (t = 0 or a channel
+ *    threshold) is mapped by q = q_edge + u^2 in its own variable to remove the edge. All pieces are
+ *    integrated together by adaptive Gauss-Kronrod (physics/numerics/quadrature.ts) to relTol, one
+ *    unit of a master variable per piece; a well-mapped piece converges on its first G7-K15 pass.
  *    The range above tMax is dropped (its weight is < e^{-tMax} times polynomial growth).
  *  - Table: <sigma v> is computed once per model point on nodes uniform in ln x between xMin and
  *    xMax and interpolated by a cubic spline of ln<sigma v> against ln x (not-a-knot ends). Beyond
@@ -34,44 +44,69 @@
  *
  * Validity: equal-mass pair, kinetic equilibrium (no early kinetic decoupling, relic.md §2.5),
  * Maxwell-Boltzmann statistics (quantum corrections ~e^{-x}/(2 sqrt 2): 2% at x = 3).
- * Accuracy: the quadrature is ~1e-9 relative (tests/relic/thermal-average.test.ts, against scipy
- * quad of eq. 2.1); the table interpolation error is measured by tests/bench/relic-bench.ts.
+ * Accuracy: the quadrature meets relTol (~1e-9 at tight knobs: tests/relic/thermal-average.test.ts,
+ * against scipy quad of eq. 2.1); the table interpolation error is measured by
+ * tests/bench/relic-bench.ts.
  */
-import type { Annihilation, Pole } from '../annihilation-model.js';
+import type { Annihilation } from '../annihilation-model.js';
 import { besselK1Scaled, besselK2Scaled } from '../numerics/bessel.js';
-import { gaussLaguerre, gaussLegendre, integrate } from '../numerics/quadrature.js';
+import { gaussLaguerre, integrate } from '../numerics/quadrature.js';
 
 /** Numerical knobs of the thermal average (declared with docs in physics/relic/relic.ts). */
 export interface ThermalAverageKnobs {
   /** Gauss-Laguerre (alpha = 1/2) nodes for the smooth case */
   readonly laguerreNodes: number;
-  /** Gauss-Legendre nodes per piece away from poles (after the square-root map) */
-  readonly legendreNodes: number;
-  /** upper cut of the t = (sqrt(s) - 2m)/T integral in the adaptive case */
+  /** upper cut of the t = (sqrt(s) - 2m)/T integral in the piecewise case */
   readonly tMax: number;
-  /** relative tolerance of the adaptive Gauss-Kronrod pieces */
+  /** relative tolerance of the adaptive Gauss-Kronrod over the pieces */
   readonly relTol: number;
-  /** half-width of the tan-mapped window around a pole, in units of M Gamma (in s) */
-  readonly poleWindowWidths: number;
+  /** half-width of the tan-mapped core around a pole, in units of its half-width w in t */
+  readonly poleCoreWidths: number;
 }
 
-/** A piece of the t-range and how it is mapped before integration. */
+/** thermal scale of the integrand in t (the e^{-t} factor) */
+const THERMAL_SCALE = 1;
+/** ratio of successive plain breakpoints away from a pole */
+const GRADING = 4;
+/** longest wing chunk in v = ln|t - t_p| / w (keeps the Breit-Wigner poles at Im v = pi/2 well outside) */
+const WING_CHUNK = 3;
+
+const enum PieceMap {
+  /** t itself */
+  Plain,
+  /** s = M^2 + M Gamma tan(theta) */
+  Tan,
+  /** t = t_p + w e^v */
+  WingUp,
+  /** t = t_p - w e^v */
+  WingDown,
+}
+
+/** One piece of the t-range: [a, b] in t, its map and the pole data the map needs. */
 interface Piece {
   readonly a: number;
   readonly b: number;
-  /** the integrand has a square-root edge at a (t = 0 or a channel threshold) */
-  readonly sqrtEdge: boolean;
-  /** the pole whose tan-window contains the piece, or null */
-  readonly pole: Pole | null;
-  /** the piece borders a pole window: the Breit-Wigner wing makes it adaptive */
-  readonly bordersPole: boolean;
+  readonly map: PieceMap;
+  /** square-root edge at t = a */
+  readonly edge: boolean;
+  /** pole centre and half-width in t (WingUp/WingDown), or M^2 and M Gamma in s (Tan) */
+  readonly p0: number;
+  readonly p1: number;
+}
+
+/** A pole as seen in t at one x. */
+interface PoleInT {
+  readonly tp: number;
+  readonly w: number;
+  readonly massGeV: number;
+  readonly widthGeV: number;
 }
 
 /** Thermal average at one x, GeV^-2. */
 export function thermalAverage(ann: Annihilation, x: number, knobs: ThermalAverageKnobs): number {
   if (!(x > 0) || !Number.isFinite(x)) return NaN;
   const m = ann.mChiGeV;
-  const pieces = adaptivePieces(ann, x, knobs);
+  const pieces = piecesOf(ann, x, knobs);
   const norm = 4 / (besselK2Scaled(x) ** 2);
   if (pieces === null) return norm * laguerreSum(ann, x, knobs.laguerreNodes);
   // F(t) without the constant prefactor
@@ -82,8 +117,14 @@ export function thermalAverage(ann: Annihilation, x: number, knobs: ThermalAvera
     if (sigma === 0) return 0;
     return sigma * (t / x) * (1 + 0.5 * r) * (1 + r) * (1 + r) * besselK1Scaled(2 * x + t) * Math.exp(-t);
   };
-  let total = 0;
-  for (const p of pieces) total += integratePiece(f, p, m, x, knobs);
+  const last = pieces.length - 1;
+  const master = (xi: number): number => {
+    const k = Math.min(last, Math.floor(xi));
+    return mappedIntegrand(f, pieces[k]!, xi - k, m, x);
+  };
+  const breakpoints: number[] = [];
+  for (let k = 1; k <= last; k++) breakpoints.push(k);
+  const total = integrate(master, 0, pieces.length, { relTol: knobs.relTol, breakpoints, maxIntervals: 50 * pieces.length + 200 }).value;
   return norm * total;
 }
 
@@ -105,91 +146,130 @@ function laguerreSum(ann: Annihilation, x: number, n: number): number {
   return sum;
 }
 
-/** The adaptive pieces of [0, tMax], or null when no threshold or pole lies in it (smooth case). */
-function adaptivePieces(ann: Annihilation, x: number, knobs: ThermalAverageKnobs): Piece[] | null {
+/** The poles of ann in t at this x: t_p +- i w from sqrt(s) = M sqrt(1 +- i Gamma/M). */
+function polesInT(ann: Annihilation, x: number): PoleInT[] {
   const m = ann.mChiGeV;
-  const tOf = (sqrtS: number): number => ((sqrtS - 2 * m) * x) / m;
-  const tMax = knobs.tMax;
-  const thresholds: number[] = [];
-  for (const e of ann.thresholdsGeV) {
-    const t = tOf(e);
-    if (t > 0 && t < tMax) thresholds.push(t);
-  }
-  const windows: { lo: number; hi: number; pole: Pole }[] = [];
+  const out: PoleInT[] = [];
   for (const pole of ann.poles) {
     const mm = pole.massGeV;
     if (!(mm > 2 * m) || !(pole.widthGeV > 0)) continue;
-    const half = knobs.poleWindowWidths * mm * pole.widthGeV;
-    const sLo = mm * mm - half;
-    const lo = sLo > 4 * m * m ? tOf(Math.sqrt(sLo)) : 0;
-    const hi = tOf(Math.sqrt(mm * mm + half));
-    if (lo < tMax) windows.push({ lo, hi: Math.min(hi, tMax), pole });
+    const g = pole.widthGeV / mm;
+    // sqrt(1 + i g) = re + i im
+    const re = Math.sqrt(0.5 * (Math.sqrt(1 + g * g) + 1));
+    const im = g / (2 * re);
+    out.push({ tp: ((mm * re - 2 * m) * x) / m, w: (mm * im * x) / m, massGeV: mm, widthGeV: pole.widthGeV });
   }
-  if (thresholds.length === 0 && windows.length === 0) return null;
-  const cuts = new Set<number>([0, tMax, ...thresholds]);
-  for (const w of windows) {
-    cuts.add(w.lo);
-    cuts.add(w.hi);
+  return out;
+}
+
+/** The pieces of [0, tMax], or null when no threshold lies in it and no pole is near (smooth case). */
+function piecesOf(ann: Annihilation, x: number, knobs: ThermalAverageKnobs): Piece[] | null {
+  const m = ann.mChiGeV;
+  const tMax = knobs.tMax;
+  const c = knobs.poleCoreWidths;
+  const edges: number[] = [0];
+  for (const e of ann.thresholdsGeV) {
+    const t = ((e - 2 * m) * x) / m;
+    if (t > 0 && t < tMax) edges.push(t);
   }
-  const sorted = [...cuts].filter((t) => t >= 0 && t <= tMax).sort((p, q) => p - q);
-  const edges = new Set<number>([0, ...thresholds]);
+  // a pole matters when its singularity lies within tMax of the range
+  const poles = polesInT(ann, x).filter((p) => p.tp < 2 * tMax && p.w < tMax);
+  if (edges.length === 1 && poles.length === 0) return null;
+  const cuts = [...edges, tMax];
+  for (const p of poles) {
+    const narrow = c * p.w < THERMAL_SCALE;
+    const r = narrow ? THERMAL_SCALE : c * p.w;
+    cuts.push(p.tp);
+    if (narrow) {
+      cuts.push(p.tp - c * p.w, p.tp + c * p.w);
+      // wing chunks in v = ln(|t - t_p| / w), from ln c to ln(R / w)
+      const v0 = Math.log(c);
+      const v1 = Math.log(r / p.w);
+      const chunks = Math.ceil((v1 - v0) / WING_CHUNK);
+      for (let j = 1; j < chunks; j++) {
+        const d = p.w * Math.exp(v0 + ((v1 - v0) * j) / chunks);
+        cuts.push(p.tp - d, p.tp + d);
+      }
+    }
+    for (let d = r; d < 2 * tMax; d *= GRADING) cuts.push(p.tp - d, p.tp + d);
+  }
+  const sorted = [...new Set(cuts.filter((t) => t >= 0 && t <= tMax))].sort((p, q) => p - q);
+  const edgeSet = new Set(edges);
   const pieces: Piece[] = [];
   for (let i = 0; i + 1 < sorted.length; i++) {
     const a = sorted[i]!;
     const b = sorted[i + 1]!;
     if (!(b > a)) continue;
     const mid = 0.5 * (a + b);
-    // the narrowest window containing the piece decides the map
-    let pole: Pole | null = null;
-    for (const w of windows) {
-      if (mid > w.lo && mid < w.hi && (pole === null || w.pole.widthGeV * w.pole.massGeV < pole.widthGeV * pole.massGeV)) pole = w.pole;
+    const edge = edgeSet.has(a);
+    // the narrowest pole whose core or wing holds the piece decides the map
+    let best: PoleInT | null = null;
+    for (const p of poles) {
+      if (c * p.w < THERMAL_SCALE && Math.abs(mid - p.tp) < THERMAL_SCALE && (best === null || p.w < best.w)) best = p;
     }
-    const bordersPole = pole === null && windows.some((w) => w.lo === b || w.hi === a);
-    pieces.push({ a, b, sqrtEdge: edges.has(a), pole, bordersPole });
+    if (best === null) {
+      pieces.push({ a, b, map: PieceMap.Plain, edge, p0: 0, p1: 0 });
+    } else if (Math.abs(mid - best.tp) < c * best.w) {
+      pieces.push({ a, b, map: PieceMap.Tan, edge, p0: best.massGeV * best.massGeV, p1: best.massGeV * best.widthGeV });
+    } else {
+      pieces.push({ a, b, map: mid > best.tp ? PieceMap.WingUp : PieceMap.WingDown, edge, p0: best.tp, p1: best.w });
+    }
   }
   return pieces;
 }
 
-/** Integral of f over one piece, with the tan map inside pole windows and u^2 maps at edges. */
-function integratePiece(f: (t: number) => number, p: Piece, m: number, x: number, knobs: ThermalAverageKnobs): number {
-  const options = { relTol: knobs.relTol, maxIntervals: 400 };
-  if (p.pole === null && p.bordersPole) {
-    if (!p.sqrtEdge) return integrate(f, p.a, p.b, options).value;
-    return integrate((u) => 2 * u * f(p.a + u * u), 0, Math.sqrt(p.b - p.a), options).value;
+/**
+ * F dt/dy on piece p at y in [0, 1]: y -> q (the piece's own variable, with q = q_edge + u^2 when
+ * the piece starts at a square-root edge) -> t.
+ */
+function mappedIntegrand(f: (t: number) => number, p: Piece, y: number, m: number, x: number): number {
+  if (p.map === PieceMap.Plain) {
+    if (!p.edge) return (p.b - p.a) * f(p.a + (p.b - p.a) * y);
+    const span = p.b - p.a;
+    return 2 * span * y * f(p.a + span * y * y);
   }
-  if (p.pole === null) {
-    // smooth after the square-root map: fixed Gauss-Legendre
-    const rule = gaussLegendre(knobs.legendreNodes);
-    const uMax = p.sqrtEdge ? Math.sqrt(p.b - p.a) : p.b - p.a;
-    const half = 0.5 * uMax;
-    let sum = 0;
-    for (let i = 0; i < rule.nodes.length; i++) {
-      const u = half * (1 + rule.nodes[i]!);
-      // sqrt edge: t = a + u^2, dt = 2u du
-      sum += rule.weights[i]! * (p.sqrtEdge ? 2 * u * f(p.a + u * u) : f(p.a + u));
+  if (p.map === PieceMap.Tan) {
+    const sOf = (t: number): number => {
+      const e = 2 * m + (t * m) / x;
+      return e * e;
+    };
+    const q0 = Math.atan((sOf(p.a) - p.p0) / p.p1);
+    const q1 = Math.atan((sOf(p.b) - p.p0) / p.p1);
+    let theta: number;
+    let dq: number;
+    if (p.edge) {
+      theta = q0 + (q1 - q0) * y * y;
+      dq = 2 * (q1 - q0) * y;
+    } else {
+      theta = q0 + (q1 - q0) * y;
+      dq = q1 - q0;
     }
-    return half * sum;
-  }
-  const mm = p.pole.massGeV;
-  const mg = mm * p.pole.widthGeV;
-  const sOf = (t: number): number => {
-    const e = 2 * m + (t * m) / x;
-    return e * e;
-  };
-  // theta(t) and its inverse: s = M^2 + M Gamma tan(theta), t = (sqrt(s) - 2m) x / m
-  const thetaA = Math.atan((sOf(p.a) - mm * mm) / mg);
-  const thetaB = Math.atan((sOf(p.b) - mm * mm) / mg);
-  const inTheta = (theta: number): number => {
-    const c = Math.cos(theta);
-    const s = mm * mm + mg * Math.tan(theta);
-    const e = Math.sqrt(s);
-    // rounding can put t a hair below the piece start; the integrand is continuous there
-    const t = Math.max(p.a, ((e - 2 * m) * x) / m);
+    const cos = Math.cos(theta);
+    const e = Math.sqrt(p.p0 + p.p1 * Math.tan(theta));
+    // rounding can put t a hair outside the piece; the integrand is continuous there
+    const t = Math.min(p.b, Math.max(p.a, ((e - 2 * m) * x) / m));
     // dt/dtheta = (x/m) (1/(2 sqrt s)) M Gamma / cos^2(theta)
-    return (f(t) * ((x / m) * mg)) / (2 * e * c * c);
-  };
-  if (!p.sqrtEdge) return integrate(inTheta, thetaA, thetaB, options).value;
-  return integrate((u) => 2 * u * inTheta(thetaA + u * u), 0, Math.sqrt(thetaB - thetaA), options).value;
+    return (dq * f(t) * ((x / m) * p.p1)) / (2 * e * cos * cos);
+  }
+  // wings: t = t_p + sign w e^v; the piece's square-root edge (at t = a) sits at the v start on the
+  // upper wing and at the v end on the lower one
+  const up = p.map === PieceMap.WingUp;
+  const vA = Math.log(Math.abs(p.a - p.p0) / p.p1);
+  const vB = Math.log(Math.abs(p.b - p.p0) / p.p1);
+  let v: number;
+  let dv: number;
+  if (!p.edge) {
+    v = vA + (vB - vA) * y;
+    dv = vB - vA;
+  } else {
+    // q = vA + (vB - vA) y^2 keeps the edge (t = a, v = vA) at y = 0 on either side
+    v = vA + (vB - vA) * y * y;
+    dv = 2 * (vB - vA) * y;
+  }
+  const d = p.p1 * Math.exp(v);
+  const t = up ? p.p0 + d : p.p0 - d;
+  // |dt/dv| = d; on the lower wing v runs backwards in t (vB < vA), the sign of dv restores order
+  return (up ? 1 : -1) * dv * d * f(t);
 }
 
 // ---------------------------------------------------------------- table in ln x

@@ -11,7 +11,7 @@ import { tabulateThermalAverage, thermalAverage, type ThermalAverageKnobs } from
 import fixture from '../fixtures/relic/thermal_average.json' with { type: 'json' };
 import { betaOf, pwave, resonance, swave, toyAnnihilation } from './toy-annihilation.js';
 
-const KNOBS: ThermalAverageKnobs = { laguerreNodes: 24, legendreNodes: 48, tMax: 100, relTol: 1e-10, poleWindowWidths: 200 };
+const KNOBS: ThermalAverageKnobs = { laguerreNodes: 24, tMax: 100, relTol: 1e-10, poleCoreWidths: 2 };
 const rel = (got: number, exp: number): number => Math.abs(got - exp) / Math.abs(exp);
 
 describe('constant sigma v_lab is returned exactly at every x (relic.md §2.1, [computed] there)', () => {

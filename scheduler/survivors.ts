@@ -2,8 +2,8 @@
  * Surviving points of a judged constraint set, optionally filtered by a `--where` expression, and
  * their output as an aligned table, CSV or JSON.
  *
- * `--where` is an expression of the sandbox (scheduler/expressions.ts) over the numeric point
- * columns. It is compiled once and registered as a deterministic SQL function that SQLite calls only
+ * `--where` is an expression of the sandbox (scheduler/expressions.ts) over the scan's numeric point
+ * columns (point_id, parameters, observables; NULL is seen as NaN). It is compiled once and registered as a deterministic SQL function that SQLite calls only
  * with the columns the expression reads, inside the query that walks the verdicts in point order.
  * Why not translate it to SQL: SQL and mathjs differ on NULL versus NaN (`not (x < 1)` is NULL in SQL
  * but true in JS), on division by zero and on integer division, so a filter would mean something
@@ -14,7 +14,6 @@
 import type { Database } from 'better-sqlite3';
 import { InvalidInputError } from '../physics/issue.js';
 import { compileExpression } from './expressions.js';
-import { pointColumns } from './constraints/scan-context.js';
 
 export const OUTPUT_FORMATS = ['table', 'csv', 'json'] as const;
 export type OutputFormat = (typeof OUTPUT_FORMATS)[number];
@@ -22,6 +21,10 @@ export type OutputFormat = (typeof OUTPUT_FORMATS)[number];
 export interface SurvivorQuery {
   readonly scanId: number | string;
   readonly set: string;
+  /** point columns to return, in order (scan-context.ts scanColumns().all) */
+  readonly columns: readonly string[];
+  /** the columns a --where expression may read (scanColumns().numeric) */
+  readonly numeric: readonly string[];
   /** filter expression over numeric point columns */
   readonly where?: string;
   /** most rows returned; undefined for all */
@@ -30,47 +33,35 @@ export interface SurvivorQuery {
 
 const quote = (column: string): string => `"${column.replace(/"/g, '""')}"`;
 
-/** Point columns that hold text and so cannot appear in a --where expression. */
-const TEXT_COLUMNS = new Set(['dm', 'mediator', 'flags']);
+/** SQL function registered on the connection for the --where filter. */
+const WHERE_FUNCTION = 'darksieve_where';
 
-/** The columns a --where expression may read. */
-export function whereNames(db: Database): string[] {
-  return pointColumns(db).filter((c) => c !== 'scan_id' && !TEXT_COLUMNS.has(c));
-}
-
-/** Columns of the rows `survivorRows` returns (every point column except scan_id). */
-export function outputColumns(db: Database): string[] {
-  return pointColumns(db).filter((c) => c !== 'scan_id');
-}
-
-/** Iterates the surviving points (arrays in `outputColumns` order), in point-id order. */
-export function survivorRows(db: Database, q: SurvivorQuery): { columns: string[]; rows: IterableIterator<unknown[]> } {
-  const columns = outputColumns(db);
+/** Iterates the surviving points (arrays in `q.columns` order), in point-id order. */
+export function survivorRows(db: Database, q: SurvivorQuery): IterableIterator<unknown[]> {
   let filter = '';
   if (q.where !== undefined) {
-    const compiled = compileExpression(q.where, whereNames(db), '--where', { expect: 'boolean' });
+    const compiled = compileExpression(q.where, q.numeric, '--where', { expect: 'boolean' });
     if (!compiled.evaluate) throw new InvalidInputError(compiled.issues);
     const evaluate = compiled.evaluate;
     const names = compiled.symbols;
     const scope: Record<string, number> = {};
-    db.function('darksieve_where', { deterministic: true, varargs: true }, (...args: unknown[]) => {
+    db.function(WHERE_FUNCTION, { deterministic: true, varargs: true }, (...args: unknown[]) => {
       for (let i = 0; i < names.length; i++) {
         const x = args[i];
         scope[names[i]!] = typeof x === 'number' ? x : NaN;
       }
       return evaluate(scope) === true ? 1 : 0;
     });
-    filter = ` AND darksieve_where(${names.map((n) => `p.${quote(n)}`).join(', ')}) = 1`;
+    filter = ` AND ${WHERE_FUNCTION}(${names.map((n) => `p.${quote(n)}`).join(', ')}) = 1`;
   }
   const limit = q.limit !== undefined ? ' LIMIT ?' : '';
-  const sql = `SELECT ${columns.map((c) => `p.${quote(c)}`).join(', ')}
+  const sql = `SELECT ${q.columns.map((c) => `p.${quote(c)}`).join(', ')}
     FROM verdicts v JOIN points p ON p.scan_id = v.scan_id AND p.point_id = v.point_id
     WHERE v.scan_id = ? AND v.constraint_set = ? AND v.survives = 1${filter}
     ORDER BY v.point_id${limit}`;
-  const stmt = db.prepare(sql).raw(true);
   const params: unknown[] = [q.scanId, q.set];
   if (q.limit !== undefined) params.push(q.limit);
-  return { columns, rows: stmt.iterate(...params) as IterableIterator<unknown[]> };
+  return db.prepare(sql).raw(true).iterate(...params) as IterableIterator<unknown[]>;
 }
 
 function csvField(v: unknown): string {

@@ -6,7 +6,7 @@
 import type { Command } from 'commander';
 import { InvalidInputError } from '../../physics/issue.js';
 import { formatSummary, listSets, readSummary } from '../constraints/judge.js';
-import { findScan } from '../constraints/scan-context.js';
+import { findScan, scanColumns } from '../constraints/scan-context.js';
 import { OUTPUT_FORMATS, survivorRows, writeRows, type OutputFormat } from '../survivors.js';
 import { openLedger } from './judge.js';
 
@@ -58,7 +58,11 @@ export function registerSurvivors(program: Command): void {
             ...(set !== undefined ? { seen: set } : {}), allowed: sets.join(', ') || '(none)',
           }]);
         }
-        const { columns, rows } = survivorRows(db, { scanId: scan.id, set, ...(opts.where !== undefined ? { where: opts.where } : {}), ...(limit !== undefined ? { limit } : {}) });
+        const { all: columns, numeric } = scanColumns(db, scan);
+        const rows = survivorRows(db, {
+          scanId: scan.id, set, columns, numeric,
+          ...(opts.where !== undefined ? { where: opts.where } : {}), ...(limit !== undefined ? { limit } : {}),
+        });
         const summary = readSummary(db, scan.id, set);
         if (summary) process.stderr.write(formatSummary(summary, `${scan.id} (${scan.name})`));
         const n = writeRows(columns, rows, format, (t) => process.stdout.write(t));

@@ -54,6 +54,18 @@ export function contextFromLedger(db: Database, scan: StoredScan, baseDir: strin
   };
 }
 
+/**
+ * The point columns that belong to a scan, in ledger order: a ledger holding several scans has the
+ * observable columns of all of them, NULL for the others. `numeric` are those an expression can read.
+ */
+export function scanColumns(db: Database, scan: StoredScan): { all: string[]; numeric: string[] } {
+  const ctx = contextFromLedger(db, scan, '.');
+  const numeric = new Set(['point_id', ...ctx.parameters, ...ctx.observables]);
+  const text = new Set(['dm', 'mediator', 'flags']);
+  const all = pointColumns(db).filter((c) => numeric.has(c) || text.has(c));
+  return { all, numeric: all.filter((c) => numeric.has(c)) };
+}
+
 /** The context for a scan about to run from its spec (the run's own judging). */
 export function contextFromSpec(spec: ScanSpec, baseDir: string): ConstraintContext {
   const setup = spec.setup;

@@ -9,7 +9,7 @@ import path from 'node:path';
 import Database from 'better-sqlite3';
 import { compileConstraints } from '../../scheduler/constraints/compile.js';
 import { judgeScan } from '../../scheduler/constraints/judge.js';
-import { contextFromLedger, findScan } from '../../scheduler/constraints/scan-context.js';
+import { contextFromLedger, findScan, scanColumns } from '../../scheduler/constraints/scan-context.js';
 import { constraintsSchema } from '../../scheduler/constraints/schema.js';
 import { survivorRows, writeRows } from '../../scheduler/survivors.js';
 import { writeFixtureLedger } from '../constraints/ledger-fixture.js';
@@ -49,7 +49,8 @@ export async function benchConstraints(points = 1_000_000): Promise<{ lines: str
       const sink = (): void => {};
       const query = (label: string, where: string | undefined, limit: number | undefined): void => {
         t0 = mark();
-        const { columns, rows } = survivorRows(db, { scanId, set: 'bench', ...(where ? { where } : {}), ...(limit ? { limit } : {}) });
+        const { all: columns, numeric } = scanColumns(db, scan);
+        const rows = survivorRows(db, { scanId, set: 'bench', columns, numeric, ...(where ? { where } : {}), ...(limit ? { limit } : {}) });
         const n = writeRows(columns, rows, 'csv', sink);
         lines.push(`survivors ${label}: ${n} rows in ${seconds(t0)} (target < 1 s)`);
       };

@@ -10,7 +10,7 @@ import { tmpdir } from 'node:os';
 import path from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { runCommand } from './cli-harness.js';
-import { fixturePoint, writeFixtureLedger } from './ledger-fixture.js';
+import { FIXTURE_SPEC, fixturePoint, writeFixtureLedger } from './ledger-fixture.js';
 
 const N = 400;
 const dir = mkdtempSync(path.join(tmpdir(), 'darksieve-cli-'));
@@ -208,4 +208,29 @@ describe('judge and survivors', () => {
       expect(r.stderr).toContain(`  ${field}: `);
     });
   }
+});
+
+describe('a ledger with several scans', () => {
+  const multi = path.join(dir, 'multi.db');
+  beforeAll(() => {
+    writeFixtureLedger(multi, 50);
+    writeFixtureLedger(multi, 80, { ...FIXTURE_SPEC, name: 'second' });
+  });
+  it('judge and survivors need --scan, and accept an id or a name', async () => {
+    const file = constraintsFile({ constraints: [relic] });
+    const without = await runCommand(['judge', multi, '--constraints', file]);
+    expect(without.code).toBe(2);
+    expect(without.stderr).toContain('  --scan: ');
+    expect(without.stderr).toContain('1 (fixture), 2 (second)');
+    expect((await runCommand(['judge', multi, '--constraints', file, '--scan', 'second'])).code).toBe(0);
+    const r = await runCommand(['survivors', multi, '--scan', '2', '--format', 'csv']);
+    expect(r.code, r.stderr).toBe(0);
+    expect(csvIds(r.stdout)).toEqual(Array.from({ length: 80 }, (_, i) => i).filter((i) => {
+      const p = fixturePoint(i, 80);
+      return p.omega_h2 !== null && p.omega_h2 <= 0.122;
+    }));
+    const first = await runCommand(['survivors', multi, '--scan', '1']);
+    expect(first.code).toBe(2);
+    expect(first.stderr).toContain('no judged constraint set');
+  });
 });

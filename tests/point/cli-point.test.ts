@@ -1,0 +1,56 @@
+/**
+ * `darksieve point` end to end through the real launcher: JSON keys follow the design contract,
+ * the readable table carries units, and bad input exits 2 naming the parameter and its range.
+ */
+import { describe, expect, it } from 'vitest';
+import { spawnSync } from 'node:child_process';
+import path from 'node:path';
+import { FIXED_OBSERVABLES } from '../../physics/observables.js';
+import { PARAMETER_NAMES } from '../../physics/model.js';
+
+const root = path.resolve(import.meta.dirname, '../..');
+const cli = (...args: string[]) =>
+  spawnSync(process.execPath, [path.join(root, 'bin/darksieve.mjs'), 'point', ...args], { encoding: 'utf8', timeout: 60_000 });
+
+describe('darksieve point', () => {
+  it('prints one JSON object keyed by the contract names', () => {
+    const r = cli('--json', 'm_chi=100', 'm_med=1000', 'g_chi=1', 'g_q=0.25', 'mediator=vector', 'dm=dirac');
+    expect(r.status, r.stderr).toBe(0);
+    const obj = JSON.parse(r.stdout) as Record<string, unknown>;
+    for (const name of [...PARAMETER_NAMES, ...FIXED_OBSERVABLES.map((o) => o.name), 'flags']) {
+      expect(obj, `missing key ${name}`).toHaveProperty(name);
+    }
+    // LHC DM working-group vector benchmark width, Gamma/M = 5.63 % (shared notes indirect.md A3,
+    // consistent with Boveia et al. 2016, arXiv:1603.04156, from memory)
+    expect(obj.width_med_gev as number).toBeCloseTo(56.3, 0);
+    expect(obj.omega_h2 as number).toBeGreaterThan(0);
+    // x_f for weak-scale points lies in 18-30 (Kolb & Turner 1990, ch. 5, from memory; relic.md §6.1)
+    expect(obj.x_f as number).toBeGreaterThan(18);
+    expect(obj.x_f as number).toBeLessThan(30);
+  });
+
+  it('prints a readable table with units without --json', () => {
+    const r = cli('mediator=axial', 'dm=majorana');
+    expect(r.status, r.stderr).toBe(0);
+    expect(r.stdout).toMatch(/^m_chi\s+100\s+GeV$/m);
+    expect(r.stdout).toMatch(/^sigv0_cm3s\s+\S+\s+cm\^3\/s$/m);
+    expect(r.stdout).toMatch(/^flags\s+/m);
+  });
+
+  const bad: [string[], string, RegExp][] = [
+    [['m_chi=NaN'], 'm_chi', /0\.01 <= m_chi <= 100000 GeV/],
+    [['m_chi=-5'], 'm_chi', /0\.01 <= m_chi/],
+    [['m_med=0'], 'm_med', /0\.001 <= m_med/],
+    [['mediator=tensor'], 'mediator', /one of scalar, pseudoscalar, vector, axial/],
+    [['g_chi=0'], 'g_chi', /0 < g_chi/],
+    [['colour=3'], 'colour', /unknown parameter/],
+    [['m_chi'], 'm_chi', /expected name=value/],
+  ];
+  it.each(bad)('rejects %j with exit 2 naming the parameter', (args, name, allowed) => {
+    const r = cli('--json', ...args);
+    expect(r.status).toBe(2);
+    expect(r.stdout).toBe('');
+    expect(r.stderr).toContain(name);
+    expect(r.stderr).toMatch(allowed);
+  });
+});

@@ -32,13 +32,13 @@ describe('evaluate: properties', () => {
     // "near thermal" = 0.01 < Omega h^2 < 10: far weaker annihilation freezes out earlier (x_f ~ 16 at Omega ~ 60)
     let checked = 0;
     for (const mediator of ['vector', 'axial', 'scalar', 'pseudoscalar']) {
-      for (const m of [30, 300, 3000]) {
-        const r = evaluate(at({ mediator, m_chi: m, m_med: 5 * m, g_chi: 1, g_q: 0.5 }), prepared);
+      for (const [m, g] of [[30, 0.5], [300, 0.5], [3000, 0.5], [300, 1.5], [3000, 2]] as const) {
+        const r = evaluate(at({ mediator, m_chi: m, m_med: 5 * m, g_chi: 1, g_q: g }), prepared);
         const omega = r.values.omega_h2!;
         if (!(omega > 0.01 && omega < 10)) continue;
         checked++;
-        expect(r.values.x_f, `${mediator} m=${m} omega=${omega}`).toBeGreaterThan(18);
-        expect(r.values.x_f, `${mediator} m=${m} omega=${omega}`).toBeLessThan(30);
+        expect(r.values.x_f, `${mediator} m=${m} g_q=${g} omega=${omega}`).toBeGreaterThan(18);
+        expect(r.values.x_f, `${mediator} m=${m} g_q=${g} omega=${omega}`).toBeLessThan(30);
       }
     }
     expect(checked).toBeGreaterThanOrEqual(6);

@@ -17,7 +17,7 @@ export const FONT_FAMILY = 'DejaVu Sans';
 export const DEFAULT_WIDTH = 720;
 export const DEFAULT_HEIGHT = 540;
 /** Height of the header band above the plot (title, keys, colour bar). */
-const HEADER_PX = 74;
+const HEADER_PX = 90;
 const MARGIN = { left: 84, right: 22, top: 10, bottom: 44 } as const;
 const EXCLUDED_OPACITY = 0.35;
 const FADED_CELL_OPACITY = 0.28;
@@ -129,6 +129,20 @@ function dataMarks(data: PlaneData): Plot.Markish[] {
   return marks;
 }
 
+/** Points between a line's vertices (straight in the axes' scale space), for placing its label. */
+function densify(line: readonly { x: number; y: number }[], x: AxisInfo, y: AxisInfo, perSegment = 16): { x: number; y: number }[] {
+  const lerp = (type: AxisInfo['type'], a: number, b: number, t: number): number =>
+    type === 'log' && a > 0 && b > 0 ? a * (b / a) ** t : a + (b - a) * t;
+  const out: { x: number; y: number }[] = [];
+  for (let k = 0; k + 1 < line.length; k++) {
+    const p = line[k] as { x: number; y: number };
+    const q = line[k + 1] as { x: number; y: number };
+    for (let s = 0; s < perSegment; s++) out.push({ x: lerp(x.type, p.x, q.x, s / perSegment), y: lerp(y.type, p.y, q.y, s / perSegment) });
+  }
+  if (line.length > 0) out.push(line[line.length - 1] as { x: number; y: number });
+  return out;
+}
+
 function overlayMarks(overlays: readonly Overlay[], x: AxisInfo, y: AxisInfo): Plot.Markish[] {
   const marks: Plot.Markish[] = [];
   const inside = (p: { x: number; y: number }): boolean =>
@@ -143,7 +157,7 @@ function overlayMarks(overlays: readonly Overlay[], x: AxisInfo, y: AxisInfo): P
     }));
     // label at the visible point farthest along the longest line, nudged inward
     const longest = [...o.lines].sort((a, b) => b.length - a.length)[0] ?? [];
-    const visible = longest.filter(inside);
+    const visible = densify(longest, x, y).filter(inside);
     const anchor = visible[Math.floor(visible.length * (0.35 + 0.2 * (k % 3)))];
     if (anchor) {
       marks.push(Plot.text([anchor], {
@@ -203,7 +217,7 @@ function colorBarSvg(data: PlaneData, width: number, x: number, y: number): { sv
   }) as unknown as SvgElement;
   const placedSvg = placed(svg, x, y);
   const what = data.color
-    ? data.mode === 'scatter' ? 'colour' : `colour: ${type === 'log' ? 'geometric mean' : 'mean'} per ${data.mode === 'grid' ? 'cell' : 'bin'}`
+    ? data.mode === 'scatter' ? '' : `${type === 'log' ? 'geometric mean' : 'mean'} per ${data.mode === 'grid' ? 'cell' : 'bin'}`
     : `points per ${data.mode === 'grid' ? 'cell' : 'bin'}`;
   return { svg: placedSvg, caption: what };
 }
@@ -233,22 +247,27 @@ export function renderPlane(data: PlaneData, options: RenderOptions): string {
   const plotHeight = height - HEADER_PX;
   const parts: string[] = [];
   parts.push(`<rect width="${width}" height="${height}" fill="white"/>`);
-  parts.push(`<text aria-label="title" x="12" y="18" font-size="14" font-weight="bold">${escapeXml(options.title)}: ${labelTspans(data.y.column, 14)}<tspan> vs </tspan>${labelTspans(data.x.column, 14)}</text>`);
-  options.notes.slice(0, 2).forEach((n, i) => {
-    parts.push(`<text x="12" y="${35 + i * 14}" font-size="10.5" fill="#333">${escapeXml(n)}</text>`);
+  const titleRoom = Math.floor((width - 24) / 8.6) - labelText(data.x.column).length - labelText(data.y.column).length - 6;
+  const title = options.title.length > titleRoom ? `${options.title.slice(0, Math.max(0, titleRoom - 1))}…` : options.title;
+  parts.push(`<text aria-label="title" x="12" y="18" font-size="14" font-weight="bold">${escapeXml(title)}: ${labelTspans(data.y.column, 14)}<tspan> vs </tspan>${labelTspans(data.x.column, 14)}</text>`);
+  // notes share the header with the colour bar: cut to the room left of it (full text in <desc>)
+  const room = Math.floor((width - 290) / 5.9);
+  options.notes.filter(Boolean).slice(0, 2).forEach((n, i) => {
+    const shown = n.length > room ? `${n.slice(0, room - 1)}…` : n;
+    parts.push(`<text x="12" y="${38 + i * 14}" font-size="10.5" fill="#333">${escapeXml(shown)}</text>`);
   });
-  parts.push(`<g aria-label="status key">${statusKey(data, 14, 66)}</g>`);
+  parts.push(`<g aria-label="status key">${statusKey(data, 14, 78)}</g>`);
   let keyX = 250;
   for (const o of options.overlays) {
     if (o.lines.length === 0) continue;
-    parts.push(`<g aria-label="curve key"><line x1="${keyX}" y1="66" x2="${keyX + 22}" y2="66" stroke="black" stroke-width="1.6"${o.dashed ? ' stroke-dasharray="6,3"' : ''}/><text x="${keyX + 27}" y="70" font-size="11">${escapeXml(o.label)}</text></g>`);
+    parts.push(`<g aria-label="curve key"><line x1="${keyX}" y1="78" x2="${keyX + 22}" y2="78" stroke="black" stroke-width="1.6"${o.dashed ? ' stroke-dasharray="6,3"' : ''}/><text x="${keyX + 27}" y="82" font-size="11">${escapeXml(o.label)}</text></g>`);
     keyX += 36 + o.label.length * 6.3;
   }
   const bx = width - 262;
-  const bar = colorBarSvg(data, 250, bx, 22);
+  const bar = colorBarSvg(data, 250, bx, 42);
   if (bar) {
     const label = data.color ? `<tspan>${labelTspans(data.color.column, 11)}</tspan>` : '';
-    parts.push(`<text x="${bx + 8}" y="16" font-size="11">${label}<tspan font-size="9.5" fill="#444">  (${escapeXml(bar.caption)})</tspan></text>`);
+    parts.push(`<text x="${bx + 8}" y="38" font-size="11">${label}${bar.caption ? `<tspan font-size="9.5" fill="#444">  (${escapeXml(bar.caption)})</tspan>` : ''}</text>`);
     parts.push(bar.svg);
   }
   parts.push(plotSvg(data, options, width, plotHeight, HEADER_PX));
@@ -259,5 +278,5 @@ export function renderPlane(data: PlaneData, options: RenderOptions): string {
   parts.push(`<text aria-label="y label" transform="translate(20,${yMid}) rotate(-90)" font-size="13" text-anchor="middle">${labelTspans(data.y.column, 13)}</text>`);
   const desc = `${labelText(data.y.column)} versus ${labelText(data.x.column)}`;
   return `<svg xmlns="http://www.w3.org/2000/svg" width="${width}" height="${height}" viewBox="0 0 ${width} ${height}" font-family="${FONT_FAMILY}" role="img" aria-label="${escapeXml(desc)}">` +
-    `<title>${escapeXml(`${options.title}: ${desc}`)}</title>${parts.join('')}</svg>`;
+    `<title>${escapeXml(`${options.title}: ${desc}`)}</title><desc>${escapeXml(options.notes.filter(Boolean).join('. '))}</desc>${parts.join('')}</svg>`;
 }

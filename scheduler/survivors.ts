@@ -76,39 +76,50 @@ function tableField(v: unknown): string {
   return String(v);
 }
 
+/** Bytes collected before one call of `write`: stdout on a pipe is synchronous, one call per row would be a system call per row. */
+const OUTPUT_CHUNK = 1 << 16;
+
 /**
  * Writes the rows in the chosen format through `write` and returns how many were written. CSV and
- * JSON keep full double precision (they are for other programs); the table rounds to 5 digits.
+ * JSON keep full double precision (they are for other programs); the table rounds to 5 digits and
+ * holds its rows in memory to align them (it is meant for --limit-sized output).
  */
 export function writeRows(columns: readonly string[], rows: Iterable<unknown[]>, format: OutputFormat, write: (text: string) => void): number {
   let n = 0;
+  let buffer = '';
+  const put = (text: string): void => {
+    buffer += text;
+    if (buffer.length >= OUTPUT_CHUNK) {
+      write(buffer);
+      buffer = '';
+    }
+  };
   if (format === 'csv') {
-    write(`${columns.join(',')}\n`);
+    put(`${columns.join(',')}\n`);
     for (const r of rows) {
-      write(`${r.map(csvField).join(',')}\n`);
+      put(`${r.map(csvField).join(',')}\n`);
       n++;
     }
-    return n;
-  }
-  if (format === 'json') {
-    write('[');
+  } else if (format === 'json') {
+    put('[');
     for (const r of rows) {
       const obj: Record<string, unknown> = {};
       columns.forEach((c, i) => {
         obj[c] = r[i] ?? null;
       });
-      write(`${n === 0 ? '\n' : ',\n'}${JSON.stringify(obj)}`);
+      put(`${n === 0 ? '\n' : ',\n'}${JSON.stringify(obj)}`);
       n++;
     }
-    write(n === 0 ? ']\n' : '\n]\n');
-    return n;
+    put(n === 0 ? ']\n' : '\n]\n');
+  } else {
+    const cells = [columns.slice()];
+    for (const r of rows) {
+      cells.push(r.map(tableField));
+      n++;
+    }
+    const widths = columns.map((_, i) => Math.max(...cells.map((row) => row[i]!.length)));
+    for (const row of cells) put(`${row.map((c, i) => c.padStart(widths[i]!)).join('  ')}\n`);
   }
-  const cells = [columns.slice()];
-  for (const r of rows) {
-    cells.push(r.map(tableField));
-    n++;
-  }
-  const widths = columns.map((_, i) => Math.max(...cells.map((row) => row[i]!.length)));
-  for (const row of cells) write(`${row.map((c, i) => c.padStart(widths[i]!)).join('  ')}\n`);
+  if (buffer !== '') write(buffer);
   return n;
 }

@@ -210,7 +210,7 @@ function colorBarSvg(data: PlaneData, width: number, x: number, y: number): { sv
     ? { type: 'log', domain: [lo, hi], ticks: logTicks([lo, hi], 5), tickFormat, label: null }
     : { type: 'linear', domain: [lo, hi], ticks: 4, tickFormat: formatLinear, label: null };
   const svg = Plot.plot({
-    document, width, height: 34, marginLeft: 8, marginRight: 14, marginTop: 2, marginBottom: 20,
+    document, width, height: 34, marginLeft: 16, marginRight: 18, marginTop: 2, marginBottom: 20,
     style: { fontFamily: FONT_FAMILY, fontSize: '10px' },
     x: axis, y: { axis: null }, color: opts,
     marks: [Plot.rect(rows, { x1: 'x1', x2: 'x2', y1: 0, y2: 1, fill: 'v', ariaDescription: 'colour bar' })],

@@ -269,3 +269,73 @@ export function fastDofInto(tGeV: number, out: Float64Array): void {
   out[0] = Math.exp(h00 * d[k]! + h10 * du * d[k + 1]! + h01 * d[k + 4]! + h11 * du * d[k + 5]!);
   out[1] = h00 * d[k + 2]! + h10 * du * d[k + 3]! + h01 * d[k + 6]! + h11 * du * d[k + 7]!;
 }
+
+// ---------------------------------------------------------------- integral of g_*^{1/2} over T
+// The Boltzmann tail needs int lambda <sigma v> dx / x^2 beyond the end of the <sigma v> table,
+// where <sigma v> is constant; with T = m/x that is sqrt(pi/45) M_Pl <sigma v> int_0^T g_*^{1/2} dT'.
+// The cumulative integral is tabulated once on the fast-path nodes: per cell, 4-point
+// Gauss-Legendre (exact for the cubic Hermite interpolant times e^u to ~1e-12 at cell width 0.02)
+// of g_*^{1/2}(u) e^u du; below FAST_T_MIN g_*^{1/2} is constant (its low-T limit).
+
+/** 4-point Gauss-Legendre on [0, 1]: nodes and weights (Abramowitz & Stegun 1964, Table 25.4) */
+const GL4_NODES = [0.0694318442029737, 0.3300094782075719, 0.6699905217924281, 0.9305681557970263];
+const GL4_WEIGHTS = [0.1739274225687269, 0.3260725774312731, 0.3260725774312731, 0.1739274225687269];
+
+/** g_*^{1/2} from the Hermite cell i of seg at fraction s in [0, 1] */
+function hermiteGStarHalf(seg: FastSegment, i: number, s: number): number {
+  const s2 = s * s;
+  const s3 = s2 * s;
+  const d = seg.data;
+  const k = 4 * i;
+  return (2 * s3 - 3 * s2 + 1) * d[k + 2]! + (s3 - 2 * s2 + s) * seg.du * d[k + 3]! + (-2 * s3 + 3 * s2) * d[k + 6]! + (s3 - s2) * seg.du * d[k + 7]!;
+}
+
+/** int over cell i of seg from its start to fraction s of g_*^{1/2} e^u du */
+function cellIntegral(seg: FastSegment, i: number, s: number): number {
+  let sum = 0;
+  for (let j = 0; j < 4; j++) {
+    const sj = s * GL4_NODES[j]!;
+    sum += GL4_WEIGHTS[j]! * hermiteGStarHalf(seg, i, sj) * Math.exp(seg.u0 + (i + sj) * seg.du);
+  }
+  return sum * s * seg.du;
+}
+
+/** cumulative int_0^{T_i} g_*^{1/2} dT at the nodes of seg, starting from `start` */
+function cumulative(seg: FastSegment, start: number): Float64Array {
+  const out = new Float64Array(seg.n);
+  out[0] = start;
+  for (let i = 0; i + 1 < seg.n; i++) out[i + 1] = out[i]! + cellIntegral(seg, i, 1);
+  return out;
+}
+
+const G_STAR_HALF_LOW_LIMIT = FAST_LOW.data[2]!;
+const CUM_LOW = cumulative(FAST_LOW, G_STAR_HALF_LOW_LIMIT * FAST_T_MIN);
+const CUM_HIGH = cumulative(FAST_HIGH, CUM_LOW[FAST_LOW.n - 1]!);
+
+/**
+ * int_0^T g_*^{1/2}(T') dT' in GeV, from the interpolated fast path (same fit and junction;
+ * relative error < 1e-7 like fastDofInto). Above FAST_T_MAX the exact fit is integrated.
+ */
+export function gStarHalfIntegral(tGeV: number): number {
+  if (!(tGeV > 0)) return tGeV === 0 ? 0 : NaN;
+  if (tGeV <= FAST_T_MIN) return G_STAR_HALF_LOW_LIMIT * tGeV;
+  if (tGeV > FAST_T_MAX) {
+    // only for m > 1e10 GeV: Simpson in ln T on the exact fit (smooth there)
+    const u0 = Math.log(FAST_T_MAX);
+    const u1 = Math.log(tGeV);
+    const n = 2 * Math.ceil((u1 - u0) / FAST_STEP / 2) + 2;
+    const h = (u1 - u0) / n;
+    let sum = 0;
+    for (let j = 0; j <= n; j++) {
+      const u = u0 + j * h;
+      const w = j === 0 || j === n ? 1 : j % 2 === 1 ? 4 : 2;
+      sum += w * gStarHalf(Math.exp(u)) * Math.exp(u);
+    }
+    return CUM_HIGH[FAST_HIGH.n - 1]! + (sum * h) / 3;
+  }
+  const seg = tGeV >= DOF_FIT_JUNCTION_GEV ? FAST_HIGH : FAST_LOW;
+  const cum = seg === FAST_HIGH ? CUM_HIGH : CUM_LOW;
+  const pos = Math.max(0, (Math.log(tGeV) - seg.u0) / seg.du);
+  const i = Math.min(seg.n - 2, Math.floor(pos));
+  return cum[i]! + cellIntegral(seg, i, pos - i);
+}

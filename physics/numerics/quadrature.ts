@@ -67,6 +67,13 @@ interface Piece {
   error: number;
 }
 
+/**
+ * Scratch for the 14 off-centre integrand values of kronrod15, one array per nesting depth (an
+ * integrand may itself call integrate), so the hot loop allocates nothing.
+ */
+const scratchByDepth: Float64Array[] = [];
+let depth = 0;
+
 /** One G7-K15 application on [a, b]. */
 function kronrod15(f: (x: number) => number, a: number, b: number): Piece {
   const centre = 0.5 * (a + b);
@@ -75,21 +82,25 @@ function kronrod15(f: (x: number) => number, a: number, b: number): Piece {
   let resK = fc * WGK[7]!;
   let resG = fc * WG[3]!;
   let resAbs = Math.abs(resK);
-  const fv1 = new Float64Array(7);
-  const fv2 = new Float64Array(7);
-  for (let j = 0; j < 7; j++) {
-    const dx = half * XGK[j]!;
-    const f1 = f(centre - dx);
-    const f2 = f(centre + dx);
-    fv1[j] = f1;
-    fv2[j] = f2;
-    resK += WGK[j]! * (f1 + f2);
-    resAbs += WGK[j]! * (Math.abs(f1) + Math.abs(f2));
-    if (j % 2 === 1) resG += WG[(j - 1) / 2]! * (f1 + f2);
+  const fv = scratchByDepth[depth] ?? (scratchByDepth[depth] = new Float64Array(14));
+  depth++;
+  try {
+    for (let j = 0; j < 7; j++) {
+      const dx = half * XGK[j]!;
+      const f1 = f(centre - dx);
+      const f2 = f(centre + dx);
+      fv[j] = f1;
+      fv[7 + j] = f2;
+      resK += WGK[j]! * (f1 + f2);
+      resAbs += WGK[j]! * (Math.abs(f1) + Math.abs(f2));
+      if (j % 2 === 1) resG += WG[(j - 1) / 2]! * (f1 + f2);
+    }
+  } finally {
+    depth--;
   }
   const mean = 0.5 * resK;
   let resAsc = WGK[7]! * Math.abs(fc - mean);
-  for (let j = 0; j < 7; j++) resAsc += WGK[j]! * (Math.abs(fv1[j]! - mean) + Math.abs(fv2[j]! - mean));
+  for (let j = 0; j < 7; j++) resAsc += WGK[j]! * (Math.abs(fv[j]! - mean) + Math.abs(fv[7 + j]! - mean));
   const absHalf = Math.abs(half);
   resAsc *= absHalf;
   resAbs *= absHalf;

@@ -23,16 +23,16 @@
  *  4. Analytic tail: once Y_eq < equilibriumCut * Y, the Y_eq^2 term is negligible (relative
  *     effect ~ equilibriumCut^2) and dY/dx = -L Y^2 integrates exactly:
  *     1/Y_0 = 1/Y(x_a) + int_{x_a}^inf L(x) dx. The integral is done in u = ln x, where the dof
- *     features are regular, by adaptive Gauss-Kronrod with breakpoints at the g_eff fit junction
- *     (T = 0.12 GeV) and at the end of the <sigma v> table; beyond both that end and T = 1e-5 GeV
- *     (dof constant) the rest is closed form.
+ *     features are regular, by adaptive Gauss-Kronrod with a breakpoint at the g_eff fit junction
+ *     (T = 0.12 GeV) up to the end of the <sigma v> table; beyond it <sigma v> is constant and the
+ *     rest is sqrt(pi/45) M_Pl <sigma v> int_0^T g_*^{1/2} dT' (physics/dof.ts gStarHalfIntegral).
  * Validity: radiation domination with SM entropy conservation, kinetic equilibrium, MB statistics
  * (x_f >~ 3; below that quantum statistics and the relativistic start matter, flagged by the caller).
  * Accuracy: ~1e-3 relative in Y_0 at the default knobs (measured against tight knobs in
  * tests/bench/relic-bench.ts, and against scipy Radau in tests/relic/boltzmann.test.ts).
  */
 import { PLANCK_MASS_GEV } from '../constants.js';
-import { DOF_FIT_JUNCTION_GEV, dofInto, fastDofInto } from '../dof.js';
+import { DOF_FIT_JUNCTION_GEV, dofInto, fastDofInto, gStarHalfIntegral } from '../dof.js';
 import { besselK1Scaled, besselK2Scaled } from '../numerics/bessel.js';
 import { integrate } from '../numerics/quadrature.js';
 
@@ -79,8 +79,6 @@ export interface FreezeOutResult {
 const LAMBDA_PREFACTOR = Math.sqrt(Math.PI / 45) * PLANCK_MASS_GEV;
 /** 45 / (4 pi^4), relic.md eq. (1.7) */
 const YEQ_PREFACTOR = 45 / (4 * Math.PI ** 4);
-/** below this temperature (GeV) the dof fit is constant to 1e-9 (physics/dof.ts) */
-const T_DOF_CONSTANT_GEV = 1e-5;
 /** x_f criterion Y = XF_RATIO * Y_eq (relic.md §0) */
 const XF_RATIO = 1.5;
 /** TR-BDF2 constant */
@@ -189,19 +187,20 @@ export function solveFreezeOut(input: FreezeOutInput, knobs: FreezeOutKnobs): Fr
     h = Math.min(knobs.stepX, 2 * h);
   }
 
-  // 4. analytic tail: int_{x_a}^{x_c} L dx in u = ln x (the dof features are regular in ln T),
-  // then the closed form beyond x_c where lambda and <sigma v> are constant
+  // 4. analytic tail: int_{x_a}^{x_c} L dx in u = ln x (the dof features are regular in ln T) up
+  // to the end x_c of the <sigma v> table, then with <sigma v> constant the closed form
+  // int_{x_c}^inf lambda <sigma v> dx / x^2 = sqrt(pi/45) M_Pl <sigma v> int_0^{m/x_c} g_*^{1/2} dT
   const xTail = cur.x;
-  const xConst = Math.max(input.sigmaVConstantFromX, m / T_DOF_CONSTANT_GEV, xTail);
+  const xConst = Math.max(input.sigmaVConstantFromX, xTail);
   const integrand = (u: number): number => {
     const x = Math.exp(u);
     return (lambdaOf(m, x) * input.sigmaV(x)) / x;
   };
-  const breakpoints = [Math.log(m / DOF_FIT_JUNCTION_GEV), Math.log(input.sigmaVConstantFromX)];
+  const breakpoints = [Math.log(m / DOF_FIT_JUNCTION_GEV)];
   const uA = Math.log(xTail);
   const uC = Math.log(xConst);
   const tail = uC > uA ? integrate(integrand, uA, uC, { relTol: knobs.tailRelTol, breakpoints, maxIntervals: 400 }).value : 0;
-  const constantPart = (lambdaOf(m, xConst) * input.sigmaV(xConst)) / xConst;
+  const constantPart = LAMBDA_PREFACTOR * input.sigmaV(xConst) * gStarHalfIntegral(m / xConst);
   const yieldToday = 1 / (1 / y + tail + constantPart);
   return Object.freeze({ yieldToday, xF, xStart: xs, xTail, steps });
 }

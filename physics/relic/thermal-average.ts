@@ -82,14 +82,20 @@ const enum PieceMap {
   WingDown,
 }
 
-/** One piece of the t-range: [a, b] in t, its map and the pole data the map needs. */
+/**
+ * One piece of the t-range, [a, b] in t, and its map from y in [0, 1]: y -> q (linear, or
+ * q = q0 + (q1 - q0) y^2 when the piece starts at a square-root edge) -> t.
+ */
 interface Piece {
   readonly a: number;
   readonly b: number;
   readonly map: PieceMap;
   /** square-root edge at t = a */
   readonly edge: boolean;
-  /** pole centre and half-width in t (WingUp/WingDown), or M^2 and M Gamma in s (Tan) */
+  /** the piece's own variable at t = a and at t = b (t, theta or v) */
+  readonly q0: number;
+  readonly q1: number;
+  /** Tan: M^2 and M Gamma (s); wings: t_p and w (t) */
   readonly p0: number;
   readonly p1: number;
 }
@@ -208,68 +214,40 @@ function piecesOf(ann: Annihilation, x: number, knobs: ThermalAverageKnobs): Pie
       if (c * p.w < THERMAL_SCALE && Math.abs(mid - p.tp) < THERMAL_SCALE && (best === null || p.w < best.w)) best = p;
     }
     if (best === null) {
-      pieces.push({ a, b, map: PieceMap.Plain, edge, p0: 0, p1: 0 });
+      pieces.push({ a, b, map: PieceMap.Plain, edge, q0: a, q1: b, p0: 0, p1: 0 });
     } else if (Math.abs(mid - best.tp) < c * best.w) {
-      pieces.push({ a, b, map: PieceMap.Tan, edge, p0: best.massGeV * best.massGeV, p1: best.massGeV * best.widthGeV });
+      const m2 = best.massGeV * best.massGeV;
+      const mg = best.massGeV * best.widthGeV;
+      const sOf = (t: number): number => (2 * m + (t * m) / x) ** 2;
+      pieces.push({ a, b, map: PieceMap.Tan, edge, q0: Math.atan((sOf(a) - m2) / mg), q1: Math.atan((sOf(b) - m2) / mg), p0: m2, p1: mg });
     } else {
-      pieces.push({ a, b, map: mid > best.tp ? PieceMap.WingUp : PieceMap.WingDown, edge, p0: best.tp, p1: best.w });
+      const up = mid > best.tp;
+      const vOf = (t: number): number => Math.log(Math.abs(t - best.tp) / best.w);
+      pieces.push({ a, b, map: up ? PieceMap.WingUp : PieceMap.WingDown, edge, q0: vOf(a), q1: vOf(b), p0: best.tp, p1: best.w });
     }
   }
   return pieces;
 }
 
-/**
- * F dt/dy on piece p at y in [0, 1]: y -> q (the piece's own variable, with q = q_edge + u^2 when
- * the piece starts at a square-root edge) -> t.
- */
+/** F dt/dy on piece p at y in [0, 1]. */
 function mappedIntegrand(f: (t: number) => number, p: Piece, y: number, m: number, x: number): number {
-  if (p.map === PieceMap.Plain) {
-    if (!p.edge) return (p.b - p.a) * f(p.a + (p.b - p.a) * y);
-    const span = p.b - p.a;
-    return 2 * span * y * f(p.a + span * y * y);
-  }
+  // y -> q with the square-root edge (t = a, q = q0) at y = 0 removed by q = q0 + (q1 - q0) y^2
+  const span = p.q1 - p.q0;
+  const q = p.edge ? p.q0 + span * y * y : p.q0 + span * y;
+  const dq = p.edge ? 2 * span * y : span;
+  if (p.map === PieceMap.Plain) return dq * f(q);
   if (p.map === PieceMap.Tan) {
-    const sOf = (t: number): number => {
-      const e = 2 * m + (t * m) / x;
-      return e * e;
-    };
-    const q0 = Math.atan((sOf(p.a) - p.p0) / p.p1);
-    const q1 = Math.atan((sOf(p.b) - p.p0) / p.p1);
-    let theta: number;
-    let dq: number;
-    if (p.edge) {
-      theta = q0 + (q1 - q0) * y * y;
-      dq = 2 * (q1 - q0) * y;
-    } else {
-      theta = q0 + (q1 - q0) * y;
-      dq = q1 - q0;
-    }
-    const cos = Math.cos(theta);
-    const e = Math.sqrt(p.p0 + p.p1 * Math.tan(theta));
+    const cos = Math.cos(q);
+    const e = Math.sqrt(p.p0 + p.p1 * Math.tan(q));
     // rounding can put t a hair outside the piece; the integrand is continuous there
     const t = Math.min(p.b, Math.max(p.a, ((e - 2 * m) * x) / m));
     // dt/dtheta = (x/m) (1/(2 sqrt s)) M Gamma / cos^2(theta)
     return (dq * f(t) * ((x / m) * p.p1)) / (2 * e * cos * cos);
   }
-  // wings: t = t_p + sign w e^v; the piece's square-root edge (at t = a) sits at the v start on the
-  // upper wing and at the v end on the lower one
-  const up = p.map === PieceMap.WingUp;
-  const vA = Math.log(Math.abs(p.a - p.p0) / p.p1);
-  const vB = Math.log(Math.abs(p.b - p.p0) / p.p1);
-  let v: number;
-  let dv: number;
-  if (!p.edge) {
-    v = vA + (vB - vA) * y;
-    dv = vB - vA;
-  } else {
-    // q = vA + (vB - vA) y^2 keeps the edge (t = a, v = vA) at y = 0 on either side
-    v = vA + (vB - vA) * y * y;
-    dv = 2 * (vB - vA) * y;
-  }
-  const d = p.p1 * Math.exp(v);
-  const t = up ? p.p0 + d : p.p0 - d;
-  // |dt/dv| = d; on the lower wing v runs backwards in t (vB < vA), the sign of dv restores order
-  return (up ? 1 : -1) * dv * d * f(t);
+  // wings: t = t_p +- w e^v, |dt/dv| = w e^v; on the lower wing v falls as t rises (q1 < q0), and
+  // the sign restores dt/dy > 0
+  const d = p.p1 * Math.exp(q);
+  return p.map === PieceMap.WingUp ? dq * d * f(p.p0 + d) : -dq * d * f(p.p0 - d);
 }
 
 // ---------------------------------------------------------------- table in ln x
@@ -280,88 +258,186 @@ export interface SigmaVTable {
   readonly xMin: number;
   /** last node, x; held constant beyond */
   readonly xMax: number;
-  /** number of nodes */
+  /** number of nodes (after refinement) */
   readonly nodes: number;
   /** <sigma v>(x) in GeV^-2 (direct evaluation below xMin, spline inside, constant above xMax) */
   at(x: number): number;
   /** true when every node is exactly zero (no annihilation at any sampled temperature) */
   readonly allZero: boolean;
+  /** the same table with its nodes refined under `refine` (the existing nodes are reused) */
+  refined(refine: TableRefinement): SigmaVTable;
+}
+
+/**
+ * Error control of the table: every interval of the starting grid is checked at its midpoint in
+ * ln x, where the cubic through the four nearest nodes must match the direct value to
+ * relTol * max(1, x / xWeight) in ln<sigma v>; otherwise the interval is halved and both halves are
+ * checked again. The midpoint is kept as a node either way. Intervals below x_f / 2 are left
+ * unchecked (the solver starts near x_f - 3). The tolerance grows as x / xWeight
+ * because an error of <sigma v> at x > x_f changes 1/Y_0 with weight ~ x_f / x per unit ln x
+ * (relic.md eq. 3.2: int lambda <sigma v> dx / x^2).
+ */
+export interface TableRefinement {
+  readonly relTol: number;
+  /** x_f estimate: the tolerance grows as x / xWeight above it; intervals below xWeight / 2 are not checked */
+  readonly xWeight: number;
+  /** smallest interval in ln x that is still halved */
+  readonly minStep: number;
 }
 
 /** Smallest <sigma v> carried in the log-spline (GeV^-2); zeros are floored here. */
 const LOG_FLOOR = 1e-300;
+/** at most this many nodes per table (guards pathological sigma(s)) */
+const MAX_TABLE_NODES = 400;
 
-/** Tabulates <sigma v> on `nodes` points uniform in ln x on [xMin, xMax] (nodes >= 4). */
+/**
+ * Tabulates <sigma v> on `nodes` points uniform in ln x on [xMin, xMax] (nodes >= 4), refined
+ * where the interpolation misses the direct value when `refine` is given.
+ */
 export function tabulateThermalAverage(
   ann: Annihilation,
   xMin: number,
   xMax: number,
   nodes: number,
   knobs: ThermalAverageKnobs,
+  refine?: TableRefinement,
 ): SigmaVTable {
   if (!(nodes >= 4) || !(xMax > xMin) || !(xMin > 0)) {
     throw new RangeError(`tabulateThermalAverage: need nodes >= 4 and 0 < xMin < xMax, got nodes=${nodes}, xMin=${xMin}, xMax=${xMax}`);
   }
+  const lnValue = (u: number): number => Math.log(Math.max(thermalAverage(ann, Math.exp(u), knobs), LOG_FLOOR));
   const u0 = Math.log(xMin);
-  const du = (Math.log(xMax) - u0) / (nodes - 1);
-  const y = new Float64Array(nodes);
-  let allZero = true;
+  const uEnd = Math.log(xMax);
+  const du = (uEnd - u0) / (nodes - 1);
+  const us: number[] = [];
+  const ys: number[] = [];
   for (let i = 0; i < nodes; i++) {
-    const v = thermalAverage(ann, Math.exp(u0 + i * du), knobs);
-    if (v !== 0) allZero = false;
-    y[i] = Math.log(Math.max(v, LOG_FLOOR));
+    const u = i === nodes - 1 ? uEnd : u0 + i * du;
+    us.push(u);
+    ys.push(lnValue(u));
   }
-  const m2 = notAKnotSecondDerivatives(y, du);
-  const last = nodes - 1;
+  if (refine) refineTable(us, ys, lnValue, refine);
+  return splineTable(ann, knobs, xMin, xMax, us, ys, lnValue);
+}
+
+/** The spline table through (us, ys); `lnValue` evaluates ln<sigma v> at further nodes. */
+function splineTable(
+  ann: Annihilation,
+  knobs: ThermalAverageKnobs,
+  xMin: number,
+  xMax: number,
+  us: readonly number[],
+  ys: readonly number[],
+  lnValue: (u: number) => number,
+): SigmaVTable {
+  const u0 = Math.log(xMin);
+  const n = us.length;
+  const allZero = ys.every((y) => y === Math.log(LOG_FLOOR));
+  const u = Float64Array.from(us);
+  const y = Float64Array.from(ys);
+  const m2 = notAKnotSecondDerivatives(u, y);
+  const last = n - 1;
   const endValue = Math.exp(y[last]!);
-  const h2 = (du * du) / 6;
   const at = (x: number): number => {
-    const u = Math.log(x);
-    if (!(u >= u0)) return x > 0 ? thermalAverage(ann, x, knobs) : NaN;
-    const pos = (u - u0) / du;
-    if (pos >= last) return endValue;
-    const i = Math.floor(pos);
-    const b = pos - i;
+    const ux = Math.log(x);
+    if (!(ux >= u0)) return x > 0 ? thermalAverage(ann, x, knobs) : NaN;
+    if (ux >= u[last]!) return endValue;
+    // binary search for the interval [u_i, u_i+1] holding ux
+    let lo = 0;
+    let hi = last;
+    while (hi - lo > 1) {
+      const mid = (lo + hi) >> 1;
+      if (u[mid]! <= ux) lo = mid;
+      else hi = mid;
+    }
+    const h = u[lo + 1]! - u[lo]!;
+    const b = (ux - u[lo]!) / h;
     const a = 1 - b;
-    const lnValue = a * y[i]! + b * y[i + 1]! + ((a * a * a - a) * m2[i]! + (b * b * b - b) * m2[i + 1]!) * h2;
-    return Math.exp(lnValue);
+    return Math.exp(a * y[lo]! + b * y[lo + 1]! + ((a * a * a - a) * m2[lo]! + (b * b * b - b) * m2[lo + 1]!) * ((h * h) / 6));
   };
-  return Object.freeze({ xMin, xMax, nodes, at, allZero });
+  const refined = (refine: TableRefinement): SigmaVTable => {
+    const usR = [...us];
+    const ysR = [...ys];
+    refineTable(usR, ysR, lnValue, refine);
+    return splineTable(ann, knobs, xMin, xMax, usR, ysR, lnValue);
+  };
+  return Object.freeze({ xMin, xMax, nodes: n, at, allZero, refined });
+}
+
+/** Inserts checked midpoints into (us, ys) until the local cubic predicts each to tolerance. */
+function refineTable(us: number[], ys: number[], lnValue: (u: number) => number, r: TableRefinement): void {
+  // intervals still to check, as their left node's u; processed left to right
+  const pending: number[] = us.slice(0, -1).reverse();
+  while (pending.length > 0 && us.length < MAX_TABLE_NODES) {
+    const uL = pending.pop()!;
+    const i = us.indexOf(uL);
+    const uR = us[i + 1]!;
+    // the solver starts near x_f - 3: <sigma v> below x_f / 2 only feeds the x_f guess
+    if (Math.exp(uR) < 0.5 * r.xWeight) continue;
+    const uMid = 0.5 * (uL + uR);
+    const predicted = localCubic(us, ys, i, uMid);
+    const yMid = lnValue(uMid);
+    us.splice(i + 1, 0, uMid);
+    ys.splice(i + 1, 0, yMid);
+    const tol = r.relTol * Math.max(1, Math.exp(uMid) / r.xWeight);
+    // both sides at the floor (no annihilation there) need no refinement
+    if (Math.abs(yMid - predicted) > tol && uR - uL > 2 * r.minStep) pending.push(uMid, uL);
+  }
+}
+
+/** Cubic through the nodes i-1, i, i+1, i+2 (shifted inside at the ends), evaluated at u. */
+function localCubic(us: readonly number[], ys: readonly number[], i: number, u: number): number {
+  const first = Math.max(0, Math.min(i - 1, us.length - 4));
+  let sum = 0;
+  for (let j = first; j < first + 4; j++) {
+    let l = 1;
+    for (let k = first; k < first + 4; k++) if (k !== j) l *= (u - us[k]!) / (us[j]! - us[k]!);
+    sum += l * ys[j]!;
+  }
+  return sum;
 }
 
 /**
- * Second derivatives of the cubic spline through y on a uniform grid of step h, with not-a-knot
- * ends (third derivative continuous at the second and the second-to-last node).
+ * Second derivatives of the cubic spline through (u, y) (any increasing u), with not-a-knot ends
+ * (third derivative continuous at the second and the second-to-last node).
  */
-function notAKnotSecondDerivatives(y: Float64Array, h: number): Float64Array {
+function notAKnotSecondDerivatives(u: Float64Array, y: Float64Array): Float64Array {
   const n = y.length;
   const m = new Float64Array(n);
-  const rhs = (i: number): number => (6 * (y[i - 1]! - 2 * y[i]! + y[i + 1]!)) / (h * h);
-  if (n === 4) {
-    // one cubic through all four points: M linear, M1 and M2 from the two interior equations
-    const r1 = rhs(1);
-    const r2 = rhs(2);
-    // with M0 = 2M1 - M2 and M3 = 2M2 - M1 both rows read 6 M1 = r1, 6 M2 = r2
-    m[1] = r1 / 6;
-    m[2] = r2 / 6;
+  const h = new Float64Array(n - 1);
+  for (let i = 0; i + 1 < n; i++) h[i] = u[i + 1]! - u[i]!;
+  const rhs = (i: number): number => 6 * ((y[i + 1]! - y[i]!) / h[i]! - (y[i]! - y[i - 1]!) / h[i - 1]!);
+  // unknowns M1..M_{n-2}; M0 and M_{n-1} eliminated with the not-a-knot conditions
+  const k = n - 2;
+  const diag = new Float64Array(k);
+  const upper = new Float64Array(k);
+  const lower = new Float64Array(k);
+  const r = new Float64Array(k);
+  for (let j = 0; j < k; j++) {
+    const i = j + 1;
+    lower[j] = h[i - 1]!;
+    diag[j] = 2 * (h[i - 1]! + h[i]!);
+    upper[j] = h[i]!;
+    r[j] = rhs(i);
+  }
+  const h0 = h[0]!;
+  const h1 = h[1]!;
+  const ha = h[n - 3]!;
+  const hb = h[n - 2]!;
+  if (k === 2) {
+    // n = 4: one cubic through all points; both rows carry their end condition
+    const d0 = ((h0 + h1) * (h0 + 2 * h1)) / h1;
+    const u0 = ((h1 - h0) * (h1 + h0)) / h1;
+    const l1 = ((ha - hb) * (ha + hb)) / ha;
+    const d1 = ((ha + hb) * (2 * ha + hb)) / ha;
+    const det = d0 * d1 - u0 * l1;
+    m[1] = (r[0]! * d1 - u0 * r[1]!) / det;
+    m[2] = (d0 * r[1]! - l1 * r[0]!) / det;
   } else {
-    // unknowns M1..M_{n-2}; first and last rows become 6 M = r after eliminating M0, M_{n-1}
-    const k = n - 2;
-    const diag = new Float64Array(k);
-    const upper = new Float64Array(k);
-    const lower = new Float64Array(k);
-    const r = new Float64Array(k);
-    for (let j = 0; j < k; j++) {
-      const i = j + 1;
-      diag[j] = 4;
-      lower[j] = 1;
-      upper[j] = 1;
-      r[j] = rhs(i);
-    }
-    diag[0] = 6;
-    upper[0] = 0;
-    diag[k - 1] = 6;
-    lower[k - 1] = 0;
+    diag[0] = ((h0 + h1) * (h0 + 2 * h1)) / h1;
+    upper[0] = ((h1 - h0) * (h1 + h0)) / h1;
+    lower[k - 1] = ((ha - hb) * (ha + hb)) / ha;
+    diag[k - 1] = ((ha + hb) * (2 * ha + hb)) / ha;
     // Thomas algorithm
     for (let j = 1; j < k; j++) {
       const w = lower[j]! / diag[j - 1]!;
@@ -371,7 +447,7 @@ function notAKnotSecondDerivatives(y: Float64Array, h: number): Float64Array {
     m[k] = r[k - 1]! / diag[k - 1]!;
     for (let j = k - 2; j >= 0; j--) m[j + 1] = (r[j]! - upper[j]! * m[j + 2]!) / diag[j]!;
   }
-  m[0] = 2 * m[1]! - m[2]!;
-  m[n - 1] = 2 * m[n - 2]! - m[n - 3]!;
+  m[0] = m[1]! - (h0 * (m[2]! - m[1]!)) / h1;
+  m[n - 1] = m[n - 2]! + (hb * (m[n - 2]! - m[n - 3]!)) / ha;
   return m;
 }

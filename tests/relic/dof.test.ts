@@ -6,8 +6,9 @@
  * free-particle limits (Kolb & Turner 1990, The Early Universe, ch. 3, from memory).
  */
 import { describe, expect, it } from 'vitest';
-import { DOF_FIT_JUNCTION_GEV, dLnHdLnT, dof, gEff, gStarHalf, hEff } from '../../physics/dof.js';
+import { DOF_FIT_JUNCTION_GEV, dLnHdLnT, dof, gEff, gStarHalf, gStarHalfIntegral, hEff } from '../../physics/dof.js';
 import fixture from '../fixtures/relic/dof_fit.json' with { type: 'json' };
+import gstarIntegral from '../fixtures/relic/gstar_integral.json' with { type: 'json' };
 
 interface Row { T: number; g: number; h: number; dlnh: number; gStarHalf: number }
 const fx = fixture as { rows: Row[]; table50: { rows: { T: number; g: number; h: number }[] } };
@@ -33,6 +34,22 @@ describe('Saikawa-Shirai 2018 fit vs independent mpmath evaluation of the same f
       expect(hEff(T)).toBe(d.hEff);
       expect(dLnHdLnT(T)).toBe(d.dLnHdLnT);
     }
+  });
+});
+
+describe('int_0^T g*^1/2 dT (Boltzmann tail beyond the <sigma v> table) vs scipy quad of the mpmath fit (gstar_integral.json)', () => {
+  it('relative 1e-7 (the interpolated fast path it integrates is < 1e-7 from the fit)', () => {
+    const bad: string[] = [];
+    for (const r of (gstarIntegral as { rows: { T: number; integral: number }[] }).rows) {
+      const got = gStarHalfIntegral(r.T);
+      if (!(rel(got, r.integral) < 1e-7)) bad.push(`T=${r.T} got ${got} expected ${r.integral} rel ${rel(got, r.integral).toExponential(2)} tol 1e-7`);
+    }
+    expect(bad, bad.join('\n')).toEqual([]);
+  });
+  it('linear below 1e-5 GeV (constant low-T limit), zero at T = 0, NaN for negative T', () => {
+    expect(gStarHalfIntegral(2e-6) / gStarHalfIntegral(1e-6)).toBeCloseTo(2, 12);
+    expect(gStarHalfIntegral(0)).toBe(0);
+    expect(gStarHalfIntegral(-1)).toBeNaN();
   });
 });
 

@@ -27,7 +27,7 @@ describe('colour maps', () => {
   // viridis and cividis are built so that lightness rises monotonically (cividis: Nunez, Anderton &
   // Renslow 2018, PLoS ONE 13, e0199239; viridis: from memory, the matplotlib 2.0 default map);
   // checked here on the colours Plot actually emits rather than taken on trust.
-  for (const scheme of ['viridis', 'cividis']) {
+  for (const scheme of ['viridis', 'cividis'] as const) {
     it(`${scheme} rises monotonically in luminance, so it reads in greyscale`, () => {
       const scale = Plot.scale({ color: { type: 'linear', scheme, domain: [0, 1] } });
       const lum = Array.from({ length: 41 }, (_, i) => luminance(String(scale.apply(i / 40))));

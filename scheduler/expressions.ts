@@ -244,6 +244,3 @@ export function compileExpression(
   };
   return { issues, evaluate, symbols, resultType };
 }
-
-/** The function names an expression may call (for help texts). */
-export const EXPRESSION_FUNCTIONS: readonly string[] = Object.freeze(Object.keys(FUNCTIONS));

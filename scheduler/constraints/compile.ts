@@ -223,7 +223,7 @@ function fluxLimitTest(b: Builder, c: FluxLimitConstraint, at: string): { test: 
 }
 
 /** The names an expression constraint may read: parameters, observables and xi. */
-export function expressionNames(ctx: ConstraintContext): string[] {
+function expressionNames(ctx: ConstraintContext): string[] {
   return [...ctx.parameters, ...ctx.observables, 'xi'];
 }
 

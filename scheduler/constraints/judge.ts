@@ -24,7 +24,7 @@ import { InvalidInputError } from '../../physics/issue.js';
 import type { CompiledConstraints } from './compile.js';
 import { MAX_CONSTRAINTS } from './schema.js';
 
-/** Point ids judged per transaction: large enough that commits cost little, small enough to stay responsive. */
+/** Points judged per transaction: large enough that commits cost little, small enough to stay responsive. */
 export const JUDGE_BATCH = 20_000;
 
 /** SQL function registered on the connection while judging. */
@@ -56,7 +56,7 @@ export interface JudgeSummary {
 const quote = (column: string): string => `"${column.replace(/"/g, '""')}"`;
 
 /** Creates the verdict tables if needed and adds a column for each constraint not seen before. */
-export function ensureVerdictTables(db: Database, columns: readonly string[]): void {
+function ensureVerdictTables(db: Database, columns: readonly string[]): void {
   db.exec(`CREATE TABLE IF NOT EXISTS verdicts (
     scan_id NOT NULL, constraint_set TEXT NOT NULL, point_id INTEGER NOT NULL, survives INTEGER NOT NULL,
     PRIMARY KEY (scan_id, constraint_set, point_id)) WITHOUT ROWID`);
@@ -146,10 +146,14 @@ export function judgeScan(db: Database, scanId: number | string, set: string, co
       WHERE scan_id = @scan AND point_id >= @lo AND point_id < @hi)
     INSERT OR REPLACE INTO verdicts (scan_id, constraint_set, point_id, survives${columns.map((c) => `, ${quote(c)}`).join('')})
     SELECT @scan, @set, point_id, mask = ${allPassed}${columns.map((_, k) => `, (mask >> ${k}) & 1`).join('')} FROM judged`);
-  const range = db.prepare('SELECT min(point_id) AS lo, max(point_id) AS hi FROM points WHERE scan_id = ?').get(scanId) as { lo: number | null; hi: number | null };
+  // Batch edges walk the stored ids (sparse when chunks are missing), batchSize points per batch.
+  const edge = db.prepare('SELECT point_id FROM points WHERE scan_id = ? AND point_id >= ? ORDER BY point_id LIMIT 1 OFFSET ?').pluck();
   const runBatch = db.transaction((lo: number, hi: number) => judgeBatch.run({ scan: scanId, set, lo, hi }));
-  if (range.lo !== null && range.hi !== null) {
-    for (let lo = range.lo; lo <= range.hi; lo += batchSize) runBatch(lo, lo + batchSize);
+  let lo = edge.get(scanId, Number.MIN_SAFE_INTEGER, 0) as number | undefined;
+  while (lo !== undefined) {
+    const next = edge.get(scanId, lo, batchSize) as number | undefined;
+    runBatch(lo, next ?? Number.MAX_SAFE_INTEGER);
+    lo = next;
   }
 
   const judgedAt = new Date().toISOString();

@@ -144,4 +144,23 @@ describe('judgeScan', () => {
       expect(ev, `point ${id}: events ${p.events_toyxe} xi ${xi}`).toBe(scaled <= 5.681 ? 1 : 0);
     }
   });
+
+  it('judges every stored point when ids are sparse (missing chunks, far-apart ids)', () => {
+    const sparseFile = path.join(dir, 'sparse.db');
+    const id = writeFixtureLedger(sparseFile, 500);
+    const sparse = new Database(sparseFile);
+    try {
+      sparse.prepare('DELETE FROM points WHERE point_id BETWEEN 100 AND 199').run();
+      sparse.prepare('UPDATE points SET point_id = point_id + 1e9 WHERE point_id >= 300').run();
+      const scan = findScan(sparse);
+      const { compiled } = compileConstraints(constraintsSchema.parse(SET_A), contextFromLedger(sparse, scan, dir));
+      const s = judgeScan(sparse, id, 'a', compiled!, 64);
+      expect(s.points).toBe(400);
+      const joined = sparse.prepare("SELECT count(*) FROM points p JOIN verdicts v ON v.point_id = p.point_id AND v.constraint_set = 'a'").pluck().get();
+      expect(joined).toBe(400);
+      expect(sparse.prepare("SELECT count(*) FROM verdicts WHERE constraint_set = 'a'").pluck().get()).toBe(400);
+    } finally {
+      sparse.close();
+    }
+  });
 });

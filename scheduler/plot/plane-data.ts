@@ -73,6 +73,8 @@ export interface PlaneData {
   readonly y: AxisInfo;
   readonly color: AxisInfo | null;
   readonly judged: boolean;
+  /** only survivors were read (--survivors-only) */
+  readonly survivorsOnly: boolean;
   /** points with x and y on their axes */
   readonly drawnPoints: number;
   /** points left out: a missing (NULL) x or y, or a value <= 0 on a log axis */
@@ -187,7 +189,7 @@ export function readPlane(view: LedgerView, req: PlaneRequest): PlaneData {
   if (req.survivorsOnly) conds.push(`${parts.survive} = 1`);
   const where = conds.join(' AND ');
   const params = [...parts.params, req.scanId];
-  const base = { x, y, color, judged: req.constraintSet !== null, drawnPoints: drawn, omittedPoints: stats.total - drawn };
+  const base = { x, y, color, judged: req.constraintSet !== null, survivorsOnly: req.survivorsOnly, drawnPoints: drawn, omittedPoints: stats.total - drawn };
 
   const cExpr = colorExpr(req.color, color?.type);
   const aggregates = `COUNT(*) AS n, TOTAL(${parts.survive} = 1) AS nSurvive,

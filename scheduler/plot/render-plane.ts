@@ -217,7 +217,8 @@ function colorBarSvg(data: PlaneData, width: number, x: number, y: number): { sv
   }) as unknown as SvgElement;
   const placedSvg = placed(svg, x, y);
   const what = data.color
-    ? data.mode === 'scatter' ? '' : `${type === 'log' ? 'geometric mean' : 'mean'} per ${data.mode === 'grid' ? 'cell' : 'bin'}`
+    ? data.mode === 'scatter' || (data.mode === 'grid' && data.pointsPerCell === 1) ? ''
+      : `${type === 'log' ? 'geometric mean' : 'mean'} per ${data.mode === 'grid' ? 'cell' : 'bin'}`
     : `points per ${data.mode === 'grid' ? 'cell' : 'bin'}`;
   return { svg: placedSvg, caption: what };
 }
@@ -225,6 +226,7 @@ function colorBarSvg(data: PlaneData, width: number, x: number, y: number): { sv
 /** The key for survivors and excluded points, drawn with the same symbols as the marks. */
 function statusKey(data: PlaneData, x0: number, y0: number): string {
   if (!data.judged) return `<text x="${x0}" y="${y0 + 4}" font-size="11" fill="#333">not judged: no verdicts for this scan</text>`;
+  if (data.survivorsOnly) return `<text x="${x0}" y="${y0 + 4}" font-size="11" fill="#333">survivors only: excluded points are not drawn</text>`;
   const items: string[] = [];
   if (data.mode === 'scatter') {
     const c = data.color ? '#21918c' : STATUS_FILL.survives;

@@ -28,6 +28,8 @@ const HELM_S_FM = 0.9;
 // Lewin & Smith 1996 §4.3 thin-shell radius coefficient and plateau (from memory)
 const THIN_SHELL_R_COEFF_FM = 1.0;
 const THIN_SHELL_PLATEAU = 0.217;
+/** q r_n at the edges of the thin-shell plateau, where F^2 has kinks (quadratures split there). */
+export const THIN_SHELL_PLATEAU_EDGES: readonly [number, number] = [2.55, 4.5];
 
 /** Helm effective radius r_n for mass number a, fm. */
 export function helmRadiusFm(a: number): number {
@@ -60,10 +62,15 @@ export function thinShellRadiusFm(a: number): number {
   return THIN_SHELL_R_COEFF_FM * Math.cbrt(a);
 }
 
+/** Recoil energies (keV) of the thin-shell plateau edges for nuclear mass massGeV and radius rnFm. */
+export function thinShellKinksKeV(massGeV: number, rnFm: number): number[] {
+  return THIN_SHELL_PLATEAU_EDGES.map((x) => ((x / rnFm) * BASE.hbarC.value) ** 2 / (2 * massGeV) * 1e6);
+}
+
 /** Lewin & Smith thin-shell form factor squared (crude spin-dependent stand-in). */
 export function thinShellFormFactorSq(qFm: number, rnFm: number): number {
   const x = qFm * rnFm;
-  if (x >= 2.55 && x <= 4.5) return THIN_SHELL_PLATEAU * THIN_SHELL_PLATEAU;
+  if (x >= THIN_SHELL_PLATEAU_EDGES[0] && x <= THIN_SHELL_PLATEAU_EDGES[1]) return THIN_SHELL_PLATEAU * THIN_SHELL_PLATEAU;
   const j0 = x < 1e-4 ? 1 - (x * x) / 6 : Math.sin(x) / x;
   return j0 * j0;
 }

@@ -16,8 +16,10 @@
  *  mediator propagator (q^2 = 2 m_A E_R) when it matters (see PROPAGATOR_CONTACT_TOL).
  *  The energy integral runs over the window cut at E_R,max (v_min = v_esc + v_E), split at the eta
  *  kink (v_min = v_esc - v_E) and at efficiency-table nodes, with fixed Gauss-Legendre panels
- *  (GL_NODES per panel) sized so that each spans at most PANEL_PHASE_RAD of q r_n and
- *  PANEL_VMIN_KMS of v_min: the integrand is then a smooth, slowly varying function on each panel.
+ *  (GL_NODES per panel) sized so that each spans at most PANEL_PHASE_RAD of q r_n,
+ *  PANEL_VMIN_KMS of v_min and PANEL_PROPAGATOR_LN of ln(m_med^2 + q^2): the integrand is then a
+ *  smooth, slowly varying function on each panel. Spin-carrying isotopes are also split at the
+ *  thin-shell plateau edges (kinks of the SD F^2).
  *
  * Validity: elastic scattering, SHM, contact or single-propagator interactions; SD rates use the
  * thin-shell stand-in (order-of-magnitude only, flagged by the caller). Efficiency acts on nuclear
@@ -32,7 +34,7 @@ import { InvalidInputError } from '../issue.js';
 import { gaussLegendre } from '../numerics/quadrature.js';
 import type { Detector, Efficiency } from '../setup.js';
 import type { ShmEta } from './halo.js';
-import { helmFormFactorSq, helmRadiusFm, thinShellFormFactorSq, thinShellRadiusFm } from './helm.js';
+import { helmFormFactorSq, helmRadiusFm, thinShellFormFactorSq, thinShellKinksKeV, thinShellRadiusFm } from './helm.js';
 import { targetIsotopes, type TargetIsotope } from './isotopes.js';
 
 // ---------------------------------------------------------------- numerical knobs
@@ -42,6 +44,13 @@ export const GL_NODES = 10;
 export const PANEL_PHASE_RAD = 1.0;
 /** Largest span of v_min per panel, km/s (eta varies on the scale v0 ~ 220 km/s). */
 export const PANEL_VMIN_KMS = 100;
+/**
+ * Largest change of ln(m_med^2 + q^2) per piece for light mediators: the propagator factor varies
+ * like a double pole at q^2 = -m_med^2, which fixed Gauss-Legendre panels resolve only when each
+ * piece spans a bounded ratio of (m_med^2 + q^2) (uniform panels left 1e-4 errors for m_med << q).
+ * Pieces are therefore geometric in (m_med^2 + q^2); the same holds for the moment weights.
+ */
+export const PANEL_PROPAGATOR_LN = 0.5;
 /** Upper bound on panels per isotope (reached only for extreme windows). */
 export const MAX_PANELS = 256;
 /**
@@ -91,10 +100,18 @@ export function recoilForVMinKeV(vKmS: number, mChiGeV: number, massGeV: number)
 }
 
 // ---------------------------------------------------------------- detectors
+/** A target isotope with its precomputed Helm and thin-shell radii (fm). */
+export type PreparedIsotope = TargetIsotope & {
+  readonly helmRadiusFm: number;
+  readonly shellRadiusFm: number;
+  /** energies of the thin-shell plateau edges (SD F^2 kinks), keV; empty for spin-0 isotopes */
+  readonly shellKinksKeV: readonly number[];
+};
+
 /** A detector prepared once per scan: isotopes with precomputed radii, efficiency, exposure. */
 export interface PreparedDetector {
   readonly name: string;
-  readonly isotopes: readonly (TargetIsotope & { readonly helmRadiusFm: number; readonly shellRadiusFm: number })[];
+  readonly isotopes: readonly PreparedIsotope[];
   readonly loKeV: number;
   readonly hiKeV: number;
   readonly exposureKgDay: number;
@@ -148,7 +165,12 @@ function prepareEfficiency(eff: Efficiency, path: string): { fn: (e: number) => 
 /** Validates and prepares one spec detector; `path` is its spec path, e.g. 'detectors[0]'. */
 export function prepareDetector(detector: Detector, path: string): PreparedDetector {
   const isotopes = targetIsotopes(detector.target, `${path}.target`).map((i) =>
-    Object.freeze({ ...i, helmRadiusFm: helmRadiusFm(i.a), shellRadiusFm: thinShellRadiusFm(i.a) }),
+    Object.freeze({
+      ...i,
+      helmRadiusFm: helmRadiusFm(i.a),
+      shellRadiusFm: thinShellRadiusFm(i.a),
+      shellKinksKeV: Object.freeze(i.spin ? thinShellKinksKeV(i.massGeV, thinShellRadiusFm(i.a)) : []),
+    }),
   );
   const w = detector.windowKeV;
   if (!(Array.isArray(w) && w.length === 2 && Number.isFinite(w[0]) && Number.isFinite(w[1]) && w[0] >= 0 && w[1] > w[0])) {
@@ -174,39 +196,64 @@ export function prepareDetector(detector: Detector, path: string): PreparedDetec
 export const KERNEL_SIZE = 6;
 
 /**
- * Response kernel of a detector (see the module comment), written into `out` at `offset`.
- * @param mMedGeV mediator mass for the propagator factor, or null for the contact limit
+ * Chebyshev basis in x = (2 ln E - ln E_lo - ln E_hi) / (ln E_hi - ln E_lo) for propagator
+ * moments (physics/direct/kernel-table.ts): w_a(E) T_k(x) for a < MOMENT_WEIGHTS and k < count,
+ * with the weights w_a = (E_lo / E)^a; E in keV. Stored at index a * count + k.
  */
-export function responseKernel(
+export interface MomentBasis {
+  readonly lnLoKeV: number;
+  readonly lnHiKeV: number;
+  readonly count: number;
+}
+
+/** Number of weights (E_lo/E)^a, a = 0, 1, 2, of the moment basis. */
+export const MOMENT_WEIGHTS = 3;
+
+/**
+ * Energy integrals of one isotope: si[a * count + k] = int eps F_Helm^2 eta P w_a T_k dE (MomentBasis)
+ * and sd[...] the same with the thin-shell F^2 (left untouched for spin-0 isotopes), keV s/km;
+ * without a basis only si[0], sd[0] (P alone). P is the propagator factor for m2 = m_med^2 > 0, 1 for m2 = 0.
+ * Zero when the isotope cannot recoil into the window (E_R,max <= window low edge).
+ */
+export function isotopeIntegrals(
   det: PreparedDetector,
+  iso: PreparedIsotope,
   shm: ShmEta,
-  rhoGeVcm3: number,
   mChiGeV: number,
-  mMedGeV: number | null,
-  out: Float64Array,
-  offset = 0,
+  m2: number,
+  basis: MomentBasis | null,
+  si: Float64Array,
+  sd: Float64Array,
 ): void {
+  const count = basis ? basis.count : 1;
+  const size = basis ? MOMENT_WEIGHTS * count : 1;
+  const spin = iso.spin;
+  si.fill(0, 0, size);
+  if (spin) sd.fill(0, 0, size);
+  const eMax = Math.min(det.hiKeV, recoilForVMinKeV(shm.vMaxKmS, mChiGeV, iso.massGeV));
+  if (!(eMax > det.loKeV)) return;
   const rule = gaussLegendre(GL_NODES);
-  const m2 = mMedGeV === null ? 0 : mMedGeV * mMedGeV;
-  // events per (amplitude GeV^-2)^2: exposure * rho/(2 pi m_chi) * GeV^-2 -> cm^2 conversion
-  const prefactor = (det.exposureKgDay * rhoGeVcm3 * GEV2_TO_CM2 * RATE_UNIT) / (2 * Math.PI * mChiGeV);
-  let siPP = 0;
-  let siPN = 0;
-  let siNN = 0;
-  let sdPP = 0;
-  let sdPN = 0;
-  let sdNN = 0;
-  for (const iso of det.isotopes) {
-    const eMax = Math.min(det.hiKeV, recoilForVMinKeV(shm.vMaxKmS, mChiGeV, iso.massGeV));
-    if (!(eMax > det.loKeV)) continue;
-    const eKink = recoilForVMinKeV(shm.vKinkKmS, mChiGeV, iso.massGeV);
-    const cuts = [det.loKeV, ...det.efficiencyNodesKeV.filter((e) => e < eMax), ...(eKink > det.loKeV && eKink < eMax ? [eKink] : []), eMax].sort((p, q) => p - q);
-    let siIntegral = 0;
-    let sdIntegral = 0;
-    const spin = iso.spin;
-    for (let c = 0; c + 1 < cuts.length; c++) {
-      const a = cuts[c]!;
-      const b = cuts[c + 1]!;
+  const xScale = basis ? 2 / (basis.lnHiKeV - basis.lnLoKeV) : 0;
+  const xShift = basis ? (basis.lnHiKeV + basis.lnLoKeV) / (basis.lnHiKeV - basis.lnLoKeV) : 0;
+  const eKink = recoilForVMinKeV(shm.vKinkKmS, mChiGeV, iso.massGeV);
+  const inner = (e: number): boolean => e > det.loKeV && e < eMax;
+  const cuts = [det.loKeV, ...det.efficiencyNodesKeV.filter(inner), ...(inner(eKink) ? [eKink] : []), ...iso.shellKinksKeV.filter(inner), eMax].sort((p, q) => p - q);
+  const loKeV = basis ? Math.exp(basis.lnLoKeV) : 0;
+  let siIntegral = 0;
+  let sdIntegral = 0;
+  // light mediators and the moment weights (E_lo/E)^a vary like poles at E = -shift: split such
+  // pieces geometrically in (E + shift) so that each spans at most logLimit in ln(E + shift)
+  const shift = m2 > 0 ? m2 / (2 * iso.massGeV * 1e-6) : 0;
+  const logLimit = basis ? Math.min(PANEL_PROPAGATOR_LN, (basis.lnHiKeV - basis.lnLoKeV) / Math.max(1, basis.count / 4)) : PANEL_PROPAGATOR_LN;
+  for (let c = 0; c + 1 < cuts.length; c++) {
+    const ca = cuts[c]!;
+    const cb = cuts[c + 1]!;
+    if (!(cb > ca)) continue;
+    const logSpan = (m2 > 0 || basis) && ca + shift > 0 ? Math.log((cb + shift) / (ca + shift)) : 0;
+    const pieces = Math.min(MAX_PANELS, Math.max(1, Math.ceil(logSpan / logLimit)));
+    for (let g = 0; g < pieces; g++) {
+      const a = g === 0 ? ca : (ca + shift) * Math.exp((logSpan * g) / pieces) - shift;
+      const b = g === pieces - 1 ? cb : (ca + shift) * Math.exp((logSpan * (g + 1)) / pieces) - shift;
       if (!(b > a)) continue;
       const phase = (Math.sqrt(2 * iso.massGeV * b * 1e-6) - Math.sqrt(2 * iso.massGeV * a * 1e-6)) / BASE.hbarC.value * iso.helmRadiusFm;
       const dv = vMinKmS(b, mChiGeV, iso.massGeV) - vMinKmS(a, mChiGeV, iso.massGeV);
@@ -225,22 +272,90 @@ export function responseKernel(
             const prop = m2 / (m2 + q2GeV2);
             common *= prop * prop;
           }
-          siIntegral += common * helmFormFactorSq(qFm, iso.helmRadiusFm);
-          if (spin) sdIntegral += common * thinShellFormFactorSq(qFm, iso.shellRadiusFm);
+          const siTerm = common * helmFormFactorSq(qFm, iso.helmRadiusFm);
+          const sdTerm = spin ? common * thinShellFormFactorSq(qFm, iso.shellRadiusFm) : 0;
+          siIntegral += siTerm;
+          sdIntegral += sdTerm;
+          if (basis && common !== 0) {
+            // Chebyshev recurrence T_{k+1} = 2 x T_k - T_{k-1}, times each weight (E_lo/E)^a
+            const x = xScale * Math.log(e) - xShift;
+            const w1 = loKeV / e;
+            let tPrev = 1;
+            let t = 1;
+            for (let k = 0; k < count; k++) {
+              if (k > 0) {
+                const tNext = k === 1 ? x : 2 * x * t - tPrev;
+                tPrev = t;
+                t = tNext;
+              }
+              let w = t;
+              for (let a = 0; a < MOMENT_WEIGHTS; a++) {
+                if (a > 0 || k > 0) {
+                  const i = a * count + k;
+                  si[i] = si[i]! + siTerm * w;
+                  if (spin) sd[i] = sd[i]! + sdTerm * w;
+                }
+                w *= w1;
+              }
+            }
+          }
         }
       }
     }
-    const n = iso.a - iso.z;
-    const si = prefactor * iso.massFraction * siIntegral;
-    siPP += si * iso.z * iso.z;
-    siPN += si * 2 * iso.z * n;
-    siNN += si * n * n;
-    if (spin) {
-      const sd = (prefactor * iso.massFraction * sdIntegral * 4 * (spin.j + 1)) / spin.j;
-      sdPP += sd * spin.sp * spin.sp;
-      sdPN += sd * 2 * spin.sp * spin.sn;
-      sdNN += sd * spin.sn * spin.sn;
-    }
   }
-  out.set([siPP, siPN, siNN, sdPP, sdPN, sdNN], offset);
+  si[0] = siIntegral;
+  if (spin) sd[0] = sdIntegral;
+}
+
+/**
+ * Events per (amplitude GeV^-2)^2 per unit energy integral: exposure * rho / (2 pi m_chi), with the
+ * GeV^-2 -> cm^2 and rate-unit conversions.
+ */
+export function kernelPrefactor(det: PreparedDetector, rhoGeVcm3: number, mChiGeV: number): number {
+  return (det.exposureKgDay * rhoGeVcm3 * GEV2_TO_CM2 * RATE_UNIT) / (2 * Math.PI * mChiGeV);
+}
+
+/**
+ * Adds one isotope's SI and SD energy integrals (isotopeIntegrals, k = 0) to a kernel `acc`
+ * (KERNEL_SIZE entries from `offset`), weighted by its mass fraction, nucleon numbers and spins.
+ */
+export function addIsotopeToKernel(iso: PreparedIsotope, prefactor: number, siIntegral: number, sdIntegral: number, acc: Float64Array, offset = 0): void {
+  const n = iso.a - iso.z;
+  const si = prefactor * iso.massFraction * siIntegral;
+  acc[offset] = acc[offset]! + si * iso.z * iso.z;
+  acc[offset + 1] = acc[offset + 1]! + si * 2 * iso.z * n;
+  acc[offset + 2] = acc[offset + 2]! + si * n * n;
+  const spin = iso.spin;
+  if (spin) {
+    const sd = (prefactor * iso.massFraction * sdIntegral * 4 * (spin.j + 1)) / spin.j;
+    acc[offset + 3] = acc[offset + 3]! + sd * spin.sp * spin.sp;
+    acc[offset + 4] = acc[offset + 4]! + sd * 2 * spin.sp * spin.sn;
+    acc[offset + 5] = acc[offset + 5]! + sd * spin.sn * spin.sn;
+  }
+}
+
+/**
+ * Response kernel of a detector (see the module comment), written into `out` at `offset`, by direct
+ * quadrature (the reference that physics/direct/kernel-table.ts interpolates).
+ * @param mMedGeV mediator mass for the propagator factor, or null for the contact limit
+ */
+export function responseKernel(
+  det: PreparedDetector,
+  shm: ShmEta,
+  rhoGeVcm3: number,
+  mChiGeV: number,
+  mMedGeV: number | null,
+  out: Float64Array,
+  offset = 0,
+): void {
+  const m2 = mMedGeV === null ? 0 : mMedGeV * mMedGeV;
+  const prefactor = kernelPrefactor(det, rhoGeVcm3, mChiGeV);
+  const si = new Float64Array(1);
+  const sd = new Float64Array(1);
+  out.fill(0, offset, offset + KERNEL_SIZE);
+  for (const iso of det.isotopes) {
+    isotopeIntegrals(det, iso, shm, mChiGeV, m2, null, si, sd);
+    if (si[0] === 0 && sd[0] === 0) continue;
+    addIsotopeToKernel(iso, prefactor, si[0]!, sd[0]!, out, offset);
+  }
 }

@@ -5,10 +5,16 @@
  * (0.1 GeV - 5 TeV, so light mediators with their (m_chi, m_med) kernels are included) x 4 x 4
  * couplings, two invented detectors (a xenon TPC with an efficiency table and an argon detector).
  * Per-scan work (prepareDirect) and every kernel computed on a cache miss are inside the timing.
- * Also reported: the cost of one cache miss (fresh DM masses, i.e. random sampling) and of the
- * per-point path once kernels are cached.
+ * Also reported: fresh DM masses in order (every point new to a memo), and a random-mass case
+ * (Latin-hypercube-like: log-uniform m_chi over the model range and m_med over 1e-3 - 1e4 GeV, all
+ * DM kinds and mediators) run twice on the same points: "before" computes every kernel by direct
+ * quadrature (rate.ts responseKernel, what each point cost when kernels were memoised only by exact
+ * mass), "after" goes through prepareDirect's interpolation tables, counting their lazy build from
+ * an empty start; then the same points once more with the tables built.
  */
 import { directObservables, prepareDirect } from '../../physics/direct/index.js';
+import { nucleonCouplings } from '../../physics/direct/nucleon.js';
+import { responseKernel } from '../../physics/direct/rate.js';
 import { DM_KINDS, MEDIATOR_KINDS, type ModelPoint } from '../../physics/model.js';
 import { DEFAULT_HADRONIC, DEFAULT_HALO, type ScanPhysicsSetup } from '../../physics/setup.js';
 
@@ -34,6 +40,42 @@ function gridPoints(): ModelPoint[] {
   return out;
 }
 
+/** Deterministic pseudo-random numbers in [0, 1) (mulberry32, common practice, no source). */
+function mulberry32(seed: number): () => number {
+  let a = seed >>> 0;
+  return () => {
+    a = (a + 0x6d2b79f5) >>> 0;
+    let t = a;
+    t = Math.imul(t ^ (t >>> 15), t | 1);
+    t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
+    return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
+  };
+}
+
+function randomPoints(n: number): ModelPoint[] {
+  const rnd = mulberry32(20240611);
+  const logU = (a: number, b: number): number => a * (b / a) ** rnd();
+  return Array.from({ length: n }, () => ({
+    dm: DM_KINDS[Math.floor(rnd() * DM_KINDS.length)]!,
+    mediator: MEDIATOR_KINDS[Math.floor(rnd() * MEDIATOR_KINDS.length)]!,
+    m_chi: logU(0.01, 1e5), m_med: logU(1e-3, 1e4), g_chi: logU(0.01, 2), g_q: logU(1e-3, 1), g_l: 0, width_med: null,
+  }));
+}
+
+/** Events by direct quadrature per point (the cost before the tables): one kernel per detector. */
+function exactEvents(p: ModelPoint, prepared: ReturnType<typeof prepareDirect>, k: Float64Array): number {
+  const c = nucleonCouplings(p, prepared.hadronic);
+  if (c.siAmpPGeV2 === 0 && c.siAmpNGeV2 === 0 && c.sdAmpPGeV2 === 0 && c.sdAmpNGeV2 === 0) return 0;
+  let total = 0;
+  prepared.detectors.forEach((det, d) => {
+    const q2Max = Math.max(...det.isotopes.map((iso) => 2 * iso.massGeV * det.hiKeV * 1e-6));
+    const contact = q2Max / (p.m_med * p.m_med) < 1e-5;
+    responseKernel(det, prepared.shm, prepared.rhoGeVcm3, p.m_chi, contact ? null : p.m_med, k);
+    total += d + k[0]! * c.siAmpPGeV2 ** 2 + k[3]! * c.sdAmpPGeV2 ** 2;
+  });
+  return total;
+}
+
 export async function benchDirect(): Promise<{ pointsPerSecond: number; lines: string[] }> {
   const points = gridPoints();
   let sink = 0;
@@ -56,6 +98,20 @@ export async function benchDirect(): Promise<{ pointsPerSecond: number; lines: s
     sink += directObservables({ dm: 'dirac', mediator: 'vector', m_chi: 5 + i * 0.731, m_med: 2000, g_chi: 1, g_q: 0.25, g_l: 0, width_med: null }, fresh).eventsByDetector[0]!;
   }
   const missRate = misses / ((performance.now() - t2) / 1000);
+
+  const random = randomPoints(20000);
+  const beforeCount = 1000;
+  const k = new Float64Array(6);
+  const t3 = performance.now();
+  for (let i = 0; i < beforeCount; i++) sink += exactEvents(random[i]!, fresh, k);
+  const beforeRate = beforeCount / ((performance.now() - t3) / 1000);
+  const tables = prepareDirect(SETUP);
+  const t4 = performance.now();
+  for (const p of random) sink += directObservables(p, tables).eventsByDetector[0]!;
+  const afterColdRate = random.length / ((performance.now() - t4) / 1000);
+  const t5 = performance.now();
+  for (const p of random) sink += directObservables(p, tables).eventsByDetector[1]!;
+  const afterWarmRate = random.length / ((performance.now() - t5) / 1000);
   if (!Number.isFinite(sink)) throw new Error('non-finite events in the direct bench');
 
   return {
@@ -63,7 +119,9 @@ export async function benchDirect(): Promise<{ pointsPerSecond: number; lines: s
     lines: [
       `mixed grid, 2 detectors: ${points.length} points in ${seconds.toFixed(2)} s = ${Math.round(pointsPerSecond)} points/s (target >= 5000), incl. prepare and ${kernels.join('+')} kernels`,
       `cached path (all kernels hit): ${Math.round(hitRate)} points/s`,
-      `every point a cache miss (random sampling): ${Math.round(missRate)} points/s`,
+      `fresh DM mass every point (in order): ${Math.round(missRate)} points/s`,
+      `random masses, before (direct quadrature per point, first ${beforeCount}): ${Math.round(beforeRate)} points/s`,
+      `random masses, after (tables, ${random.length} points incl. lazy build of ${tables.tableNodes().join('+')} nodes): ${Math.round(afterColdRate)} points/s; same points again: ${Math.round(afterWarmRate)} points/s`,
     ],
   };
 }

@@ -28,7 +28,7 @@ describe('prepareDirect / directObservables', () => {
       for (let d = 0; d < 3; d++) expect(Object.is(hit.eventsByDetector[d], miss.eventsByDetector[d]), `detector ${d} point ${JSON.stringify(p)}`).toBe(true);
       expect(hit.flags).toEqual(miss.flags);
     }
-    expect(warm.cachedKernels().every((n) => n > 0)).toBe(true);
+    expect(warm.tableNodes().every((n) => n > 0)).toBe(true);
   });
 
   it('events follow the detector order of the setup', () => {
@@ -89,10 +89,11 @@ describe('prepareDirect / directObservables', () => {
     expect(r.sigmaSiPCm2).toBeGreaterThan(0);
   });
 
-  it('the kernel memo stays bounded', () => {
-    const pr = prepareDirect(setup([{ name: 'tiny', target: 'F', windowKeV: [10, 20], efficiency: 1, exposureKgDay: 1 }]));
-    for (let i = 0; i < KERNEL_MEMO_CAPACITY + 50; i++) directObservables(point({ m_chi: 50 + i * 1e-3 }), pr);
+  it('the memo of exact kernels (light mediator, window from 0 keV) stays bounded', () => {
+    const pr = prepareDirect(setup([{ name: 'tiny', target: 'F', windowKeV: [0, 20], efficiency: 1, exposureKgDay: 1 }]));
+    for (let i = 0; i < KERNEL_MEMO_CAPACITY + 50; i++) directObservables(point({ m_chi: 50 + i * 1e-3, m_med: 0.01 }), pr);
     expect(pr.cachedKernels()[0]).toBe(KERNEL_MEMO_CAPACITY);
+    expect(pr.tableNodes()[0]).toBe(0);
   });
 
   it('invalid setup: errors name the field', () => {

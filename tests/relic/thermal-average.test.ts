@@ -114,6 +114,26 @@ describe('table in ln x', () => {
       }
     }
   });
+  it('refined table (2 nodes/decade start, midpoint checks at 3e-3 weighted by x/x_f) meets 3e-3 x max(1, x/x_f) between nodes for s+p-wave, resonance and threshold (common practice, no source: the check tolerance bounds the final spline, which also holds the checked midpoints)', () => {
+    const cases = [
+      ['s+p-wave', toyAnnihilation({ mChiGeV: 100, sigma: (s) => { const b = betaOf(100, s); return (1e-9 + 4e-9 * b * b) / (2 * b); } })],
+      ['resonance M = 2.1m', resonance(100, 6.77044e-8, 210, 1)],
+      ['narrow resonance M = 2.01m, Gamma/M = 1e-4', resonance(500, 3e-7, 1005, 0.1005)],
+      ['threshold at 1.05m', toyAnnihilation({ mChiGeV: 100, thresholdsGeV: [210], sigma: (s) => { const b = betaOf(100, s); return (2e-10 + 3e-8 * betaOf(105, s)) / (2 * b); } })],
+    ] as const;
+    const xF = 22;
+    for (const [name, ann] of cases) {
+      const table = tabulateThermalAverage(ann, 3, 1e4, 8, KNOBS).refined({ relTol: 3e-3, xWeight: xF, minStep: 0.005 });
+      const bad: string[] = [];
+      for (let lx = Math.log(0.5 * xF); lx < Math.log(9e3); lx += 0.0731) {
+        const x = Math.exp(lx);
+        const direct = thermalAverage(ann, x, KNOBS);
+        const tol = 3e-3 * Math.max(1, x / xF);
+        if (!(rel(table.at(x), direct) < tol)) bad.push(`${name} x=${x.toFixed(2)} got ${table.at(x)} expected ${direct} tol ${tol}`);
+      }
+      expect(bad, bad.join('\n')).toEqual([]);
+    }
+  });
   it('holds the last value beyond xMax, evaluates directly below xMin, flags all-zero sigma', () => {
     const ann = swave(100, 1e-9);
     const table = tabulateThermalAverage(ann, 10, 1e3, 10, KNOBS);

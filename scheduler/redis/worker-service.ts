@@ -71,7 +71,10 @@ class ScanServer {
     private readonly onChunkDone: () => void,
   ) {}
 
-  static async start(a: ScanAnnouncement, o: Required<Omit<WorkerServiceOptions, 'log' | 'physicsModule'>> & { physicsModule?: string }, connection: ConnectionOptions, onChunkDone: () => void, onError: (err: Error) => void): Promise<ScanServer> {
+  static async start(
+    workerId: string, a: ScanAnnouncement, o: Required<Omit<WorkerServiceOptions, 'log' | 'physicsModule'>> & { physicsModule?: string },
+    connection: ConnectionOptions, onChunkDone: () => void, onError: (err: Error) => void,
+  ): Promise<ScanServer> {
     const pool = new EmbeddedPool({ workers: o.concurrency, maxAttempts: 1, physicsModule: o.physicsModule });
     await pool.open({ scanKey: a.scanKey, resolvedSpecJson: a.resolvedSpecJson, observableNames: a.observableNames });
     const server = new ScanServer(a.queue, pool, onChunkDone);
@@ -79,7 +82,8 @@ class ScanServer {
     server.results.on('error', onError);
     void server.pump();
     server.bull = new Worker<ChunkJobData>(a.queue, (job) => server.process(job), {
-      connection, prefix: o.prefix, concurrency: o.concurrency, lockDuration: o.lockDurationMs,
+      // the name becomes each job's processedBy, so a chunk can be traced to the worker holding it
+      name: workerId, connection, prefix: o.prefix, concurrency: o.concurrency, lockDuration: o.lockDurationMs,
       stalledInterval: o.stalledIntervalMs, maxStalledCount: o.maxStalledCount,
     });
     server.bull.on('error', onError);
@@ -154,6 +158,11 @@ export class WorkerService {
     this.log = options.log ?? ((line) => process.stderr.write(`${line}\n`));
     this.connection = bullConnection(redisOptionsFromUrl(options.url));
     this.id = `${hostname()}-${process.pid}-${randomBytes(3).toString('hex')}`;
+  }
+
+  /** Chunks this worker has evaluated and sent back. */
+  get chunksEvaluated(): number {
+    return this.chunksDone;
   }
 
   /** Queues being served now. */
@@ -237,7 +246,7 @@ export class WorkerService {
     if (a.codeVersion !== this.o.codeVersion)
       this.log(`warning: scan ${a.queue} was started by code ${a.codeVersion}, this worker runs ${this.o.codeVersion}; results are bit-identical only when the physics code is the same`);
     try {
-      const server = await ScanServer.start(a, this.o, this.connection, () => this.chunksDone++, (err) => this.noteError(err));
+      const server = await ScanServer.start(this.id, a, this.o, this.connection, () => this.chunksDone++, (err) => this.noteError(err));
       if (this.closed) {
         await server.stop(true);
         return;

@@ -1,0 +1,99 @@
+/**
+ * Scans through BullMQ on the real Redis: the same rows bit for bit as the embedded pool, clean-up
+ * of the scan's queues, a chunk that fails every attempt recorded as failed while the scan goes on,
+ * and a resume that retries it. Stand-in physics (tests/scan/fake-physics.ts) keeps this fast.
+ */
+import path from 'node:path';
+import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { runScan, type RunOptions } from '../../scheduler/run.js';
+import { RedisTransport } from '../../scheduler/redis/transport.js';
+import { WorkerService } from '../../scheduler/redis/worker-service.js';
+import { FAKE_PHYSICS, pointRows, query, tempDir, writeSpec } from '../scan/helpers.js';
+import { CRASHY_PHYSICS, MECH_SPEC, MECH_TOTAL, TEST_REDIS_URL, announcedScans, cleanupPrefix, keysUnder, newPrefix, redisAvailable } from './helpers.js';
+
+const available = await redisAvailable();
+
+const TOTAL = MECH_TOTAL;
+const silent = (): void => {};
+
+describe.skipIf(!available)('scans through Redis (BullMQ)', () => {
+  let tmp: ReturnType<typeof tempDir>;
+  let specFile: string;
+  let reference: string[][];
+  const prefixes: string[] = [];
+
+  beforeAll(async () => {
+    tmp = tempDir();
+    specFile = writeSpec(tmp.dir, 'mech.json', MECH_SPEC);
+    const db = path.join(tmp.dir, 'embedded.db');
+    await runScan({ specPath: specFile, dbPath: db, physicsModule: FAKE_PHYSICS, quiet: true, log: silent, workers: 1, chunkSize: 16 });
+    reference = pointRows(db);
+    expect(reference.length).toBe(TOTAL);
+  });
+  afterAll(async () => {
+    for (const p of prefixes) await cleanupPrefix(TEST_REDIS_URL, p);
+    tmp.cleanup();
+  });
+
+  const prefix = (): string => {
+    const p = newPrefix();
+    prefixes.push(p);
+    return p;
+  };
+  const transport = (p: string, extra: Partial<ConstructorParameters<typeof RedisTransport>[0]> = {}) =>
+    new RedisTransport({ url: TEST_REDIS_URL, prefix: p, ledgerTag: 'test', codeVersion: 'test', pollMs: 200, log: silent, ...extra });
+  const run = (db: string, t: RedisTransport, extra: Partial<RunOptions> = {}) =>
+    runScan({ specPath: specFile, dbPath: db, physicsModule: FAKE_PHYSICS, quiet: true, log: silent, chunkSize: 16, transport: t, ...extra });
+
+  it('gives the embedded pool rows bit for bit and leaves no queue behind', async () => {
+    const p = prefix();
+    const worker = new WorkerService({ url: TEST_REDIS_URL, prefix: p, concurrency: 2, codeVersion: 'test', physicsModule: FAKE_PHYSICS, pollMs: 200, log: silent });
+    await worker.start();
+    try {
+      const db = path.join(tmp.dir, 'redis.db');
+      const s = await run(db, transport(p));
+      expect(s.status).toBe('done');
+      expect(s.pointsThisRun).toBe(TOTAL);
+      expect(pointRows(db)).toEqual(reference);
+      const chunks = query<{ n: number; attempts: number }>(db, `SELECT COUNT(*) AS n, MAX(attempts) AS attempts FROM chunks WHERE status = 'done'`)[0]!;
+      expect(chunks).toEqual({ n: 8, attempts: 1 });
+      expect(await announcedScans(TEST_REDIS_URL, p)).toEqual([]);
+    } finally {
+      await worker.close();
+    }
+    expect(await keysUnder(TEST_REDIS_URL, p)).toEqual([]);
+  });
+
+  it('records a chunk that fails every attempt, goes on, and retries it on resume', async () => {
+    const p = prefix();
+    // crashy physics kills its thread at one point: exactly one chunk fails, twice
+    const worker = new WorkerService({ url: TEST_REDIS_URL, prefix: p, concurrency: 2, codeVersion: 'test', physicsModule: CRASHY_PHYSICS, pollMs: 200, log: silent });
+    await worker.start();
+    const db = path.join(tmp.dir, 'crashy.db');
+    try {
+      const s = await run(db, transport(p, { attempts: 2, backoffMs: 50 }));
+      expect(s.status).toBe('incomplete');
+      expect(s.chunksFailed).toBe(1);
+      const failed = query<{ attempts: number; error: string }>(db, `SELECT attempts, error FROM chunks WHERE status = 'failed'`);
+      expect(failed.length).toBe(s.chunksFailed);
+      for (const f of failed) {
+        expect(f.attempts).toBe(2);
+        expect(f.error).toMatch(/exited with code 7/);
+      }
+      expect(s.pointsDone).toBe(TOTAL - 16);
+    } finally {
+      await worker.close();
+    }
+    // resume with well-behaved workers: the failed chunks run again and the ledger ends complete
+    const good = new WorkerService({ url: TEST_REDIS_URL, prefix: p, concurrency: 2, codeVersion: 'test', physicsModule: FAKE_PHYSICS, pollMs: 200, log: silent });
+    await good.start();
+    try {
+      const s = await run(db, transport(p));
+      expect(s.status).toBe('done');
+      expect(s.resumed).toBe(true);
+      expect(pointRows(db)).toEqual(reference);
+    } finally {
+      await good.close();
+    }
+  });
+});

@@ -4,15 +4,13 @@
  * existing ones, without recomputing physics. Everything is validated before the ledger is written:
  * bad input exits 2 and leaves the ledger as it was.
  */
-import { existsSync } from 'node:fs';
 import path from 'node:path';
-import Database from 'better-sqlite3';
 import type { Command } from 'commander';
 import { InvalidInputError } from '../../physics/issue.js';
 import { compileConstraints } from '../constraints/compile.js';
 import { loadConstraintsFile } from '../constraints/file.js';
 import { checkSetName, formatSummary, judgeScan } from '../constraints/judge.js';
-import { contextFromLedger, findScan } from '../constraints/scan-context.js';
+import { contextFromLedger, findScan, openLedger } from '../constraints/scan-context.js';
 import { SET_NAME } from '../constraints/schema.js';
 
 interface JudgeOptions {
@@ -32,15 +30,6 @@ function setName(opts: JudgeOptions, fromFile: string | undefined): string {
     }]);
   }
   return name;
-}
-
-export function openLedger(file: string, readonly: boolean): Database.Database {
-  if (!existsSync(file)) {
-    throw new InvalidInputError([{ code: 'missing_file', path: 'DB', message: `ledger file ${file} does not exist`, seen: file, allowed: 'a ledger written by darksieve run' }]);
-  }
-  const db = new Database(file, { readonly, fileMustExist: true });
-  db.pragma('busy_timeout = 5000');
-  return db;
 }
 
 export function registerJudge(program: Command): void {

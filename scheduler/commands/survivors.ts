@@ -6,9 +6,8 @@
 import type { Command } from 'commander';
 import { InvalidInputError } from '../../physics/issue.js';
 import { formatSummary, listSets, readSummary } from '../constraints/judge.js';
-import { findScan, scanColumns } from '../constraints/scan-context.js';
+import { findScan, openLedger, scanColumns } from '../constraints/scan-context.js';
 import { OUTPUT_FORMATS, survivorRows, writeRows, type OutputFormat } from '../survivors.js';
-import { openLedger } from './judge.js';
 
 /** Rows shown by the table format when --limit is not given (csv and json give all rows). */
 export const DEFAULT_TABLE_ROWS = 50;

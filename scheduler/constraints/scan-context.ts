@@ -2,12 +2,23 @@
  * Reading a scan back from a ledger for judging and queries: which scan (`--scan ID|NAME`, or the
  * only one), its resolved spec, and the numeric columns its points carry.
  */
-import type { Database } from 'better-sqlite3';
+import { existsSync } from 'node:fs';
+import Database from 'better-sqlite3';
 import { InvalidInputError } from '../../physics/issue.js';
 import { PARAMETERS } from '../../physics/model.js';
 import { numericObservableNames } from '../../physics/observables.js';
 import { specFromResolvedJson, type ScanSpec } from '../spec.js';
 import type { ConstraintContext } from './compile.js';
+
+/** Opens an existing ledger (never creates one: a mistyped path is bad input, exit 2). */
+export function openLedger(file: string, readonly: boolean): Database.Database {
+  if (!existsSync(file)) {
+    throw new InvalidInputError([{ code: 'missing_file', path: 'DB', message: `ledger file ${file} does not exist`, seen: file, allowed: 'a ledger written by darksieve run' }]);
+  }
+  const db = new Database(file, { readonly, fileMustExist: true });
+  db.pragma('busy_timeout = 5000');
+  return db;
+}
 
 export interface StoredScan {
   readonly id: number | string;
@@ -17,7 +28,7 @@ export interface StoredScan {
 }
 
 /** Opens the scan `ref` (its id or name), or the only scan of the ledger when `ref` is absent. */
-export function findScan(db: Database, ref?: string): StoredScan {
+export function findScan(db: Database.Database, ref?: string): StoredScan {
   const hasScans = db.prepare("SELECT 1 FROM sqlite_master WHERE type = 'table' AND name = 'scans'").get();
   if (!hasScans) {
     throw new InvalidInputError([{ code: 'not_a_ledger', path: 'DB', message: 'this file has no scans table; is it a darksieve ledger?', allowed: 'a ledger written by darksieve run' }]);
@@ -38,12 +49,12 @@ export function findScan(db: Database, ref?: string): StoredScan {
 }
 
 /** Columns of the points table. */
-export function pointColumns(db: Database): string[] {
+export function pointColumns(db: Database.Database): string[] {
   return db.prepare('SELECT name FROM pragma_table_info(?)').pluck().all('points') as string[];
 }
 
 /** The numeric parameter and observable columns of a stored scan, and its local density. */
-export function contextFromLedger(db: Database, scan: StoredScan, baseDir: string): ConstraintContext {
+export function contextFromLedger(db: Database.Database, scan: StoredScan, baseDir: string): ConstraintContext {
   const columns = new Set(pointColumns(db));
   const setup = scan.spec.setup;
   return {
@@ -58,7 +69,7 @@ export function contextFromLedger(db: Database, scan: StoredScan, baseDir: strin
  * The point columns that belong to a scan, in ledger order: a ledger holding several scans has the
  * observable columns of all of them, NULL for the others. `numeric` are those an expression can read.
  */
-export function scanColumns(db: Database, scan: StoredScan): { all: string[]; numeric: string[] } {
+export function scanColumns(db: Database.Database, scan: StoredScan): { all: string[]; numeric: string[] } {
   const ctx = contextFromLedger(db, scan, '.');
   const numeric = new Set(['point_id', ...ctx.parameters, ...ctx.observables]);
   const text = new Set(['dm', 'mediator', 'flags']);

@@ -13,36 +13,51 @@
  * |D|^2 = (s - M^2)^2 + M^2 Gamma^2. Couplings as indirect.md A0: spin-0 c_f = g m_f / v (Yukawa-like),
  * spin-1 universal g_q / g_l; colour factor 3 for quarks.
  *
- * Method, mediator pair (APPROXIMATE, flagged): NOT the exact s dependence. The expansions of
- * indirect.md A4 in v = v_rel are evaluated with v^2 = 4 (1 - 4 m_chi^2 / s), i.e.
- * s = 4 m_chi^2 / (1 - v^2/4), r = M^2 / m_chi^2:
- *   V V: s-wave term only (its v^2 term is not known in closed form here: omitted);
- *   A A: the V V s-wave plus the leading longitudinal p-wave term g^4 v^2 m_chi^2 / (12 pi M^4)
- *        (exact only for r -> 0; the sub-leading 1/r and r^0 parts of the v^2 coefficient omitted);
- *   S S: g^4 v^2 sqrt(1-r) (9 - 8r + 2r^2) / (24 pi m_chi^2 (2-r)^4);
- *   P P: g^4 v^2 (1-r)^(5/2) / (24 pi m_chi^2 (2-r)^4).
- * Measured against exact tree-level explicit-spinor numerics (tests/fixtures/annihilation,
- * r = 1e-6, 0.09, 0.5, 0.81): the s-wave (V, A) and the v^2 coefficients (S, P) agree to < 2e-6
- * as v -> 0. At v = 0.3 (freeze-out velocities) the omitted higher orders give: S 3-4%,
- * P 1-14%, V 2-30%, A 0.2-7%, the largest at r = 0.81 (final-state mediators close to threshold,
- * where the expansion parameter is v^2/(1 - r)); the expansion underestimates V V there. The channel
- * is absent when m_med >= m_chi (no Boltzmann-tail opening of a kinematically forbidden pair channel).
+ * Method, mediator pair: exact tree-level chi chibar -> med med (t- and u-channel chi exchange,
+ * spin average 1/4, factor 1/2 for identical bosons, three Proca polarisations with
+ * sum eps eps* = -g + k k / M^2), integrated over the angle in closed form. Derived here with sympy
+ * from explicit 4x4 Dirac traces (the spin-summed |M|^2 times (t - m^2)^2 (u - m^2)^2 is even and
+ * quartic in cos(theta)). With r = M^2/m_chi^2, sh = s/m_chi^2, d = sh - 4, e = sh - 4r, w = sh - 2r:
+ *   sigma v_Mol = g_chi^4 sqrt(e/sh) / (8 pi m_chi^2 sh w^2) * [ x^2/(1-x^2) c1 + x^2 c2 H(x) + 2 n0 ],
+ *   x^2 = d e / w^2,  x^2/(1-x^2) = d e / (4 (r^2 - 4r + sh)),  H(x) = (atanh(x)/x - 1)/x^2
+ *   (x = beta_chi beta_med s / (s - 2M^2) < 1; H by its Taylor series sum x^(2n)/(2n+3) for x^2 < 0.01),
+ *   S: n0 = 8d,                c1 = -2(4-r)^2,  c2 = d^2 + (24-4r) d + 6r^2 - 32r + 48
+ *   P: n0 = 0,                 c1 = -2r^2,      c2 = d^2 + (8-4r) d + 6r^2 - 16r + 16
+ *   V: n0 = d^2 + (16+4r) d + 16 - 16r,        c1 = -8(r+2)^2,  c2 = 4 (d^2 + 12d + 4r^2 - 8r + 24)
+ *   A: n0 = [2d^3 + (16 - 8r + r^2) d^2 + (32 - 32r + 24r^2 + 4r^3) d + 16r^2 - 16r^3] / r^2,
+ *      c1 = -8(4-r)^2,
+ *      c2 = 4 [(r^2 + 4r - 4) d^2 + (48r - 4r^2 - 32) d + 4r^4 - 16r^3 - 32r^2 + 128r - 64] / r^2.
+ * The 1/r terms of A are the longitudinal modes coupled to the non-conserved axial current (growth as
+ * g^4 v^2 m_chi^2/(12 pi M^4) for M -> 0, a unitarity problem of the model: Kahlhoefer et al. 2016,
+ * JHEP 02, 016 [memory]); for V they cancel (conserved current). All polynomials are precomputed per
+ * point; the s = 4 m^2 zeros of the p-wave channels are explicit factors of d (no cancellation).
+ * v -> 0 reproduces indirect.md A4 exactly (V/A s-wave, S and P v^2 coefficients); the full v^2
+ * coefficients of V and A are in physics/annihilation-nr.ts. The channel is absent when
+ * m_med >= m_chi (no Boltzmann-tail opening of a kinematically forbidden pair channel).
  *
  * Majorana (normalisation (g_chi/2) chibar Gamma chi, indirect.md A6): the same sigma as Dirac at
  * equal g_chi for every final state; the vector current vanishes, so a vector mediator gives no
- * annihilation at all (the result then has no channels and sigma = 0).
+ * annihilation at all (the result then has no channels and sigma = 0). For the pair channel this was
+ * checked separately (both exchanges present for Majorana too, the u-channel carried against the
+ * fermion flow with C-conjugated vertices and a relative minus sign, flow rules of Denner, Eck, Hahn &
+ * Kublbeck 1992, Nucl. Phys. B387, 467 [memory]): for S, P, A the spin-summed |M|^2 equals the Dirac one
+ * angle by angle (fixture, to 1e-12), as the decomposition of a Dirac fermion into two decoupled
+ * Majoranas with (g/2) couplings (chi1 chi2 -> med med has no tree diagram) requires.
  *
  * Validity: tree level, perturbative couplings, narrow-to-moderate width (fixed-width
  * Breit-Wigner; Gamma/M > 0.3 is flagged by the evaluation). Quark final states are taken as free
  * quarks: below a few GeV (hadronic thresholds) the rates are indicative only. No Sommerfeld
  * factor, no loop-induced final states (gg, gamma gamma), no W/Z/h final states.
  *
- * Accuracy: f fbar channels are exact closed forms in double precision (agreement with numerical
- * spin sums ~1e-12); mediator-pair channels as stated above.
+ * Accuracy: all channels are exact tree-level closed forms in double precision. Agreement with the
+ * explicit-spinor numerics of tests/fixtures/annihilation: f fbar ~1e-12; mediator pair <= 1.2e-12 for
+ * v_rel >= 0.01 and <= 8e-10 at v_rel = 1e-3 (rounding of s - 4 m^2 on both sides), over r = 1e-6 ... 0.9999
+ * and v_rel up to 1.9.
  *
  * References: Abercrombie et al. 2015, arXiv:1507.00966, Sec. 2 (Lagrangians); Berlin, Hooper &
  * McDermott 2014, PRD 89, 115022 (non-relativistic limits) [memory]; Pospelov, Ritz & Voloshin
- * 2008, PLB 662, 53 (chi chibar -> V V) [memory]; Gondolo & Gelmini 1991, Nucl. Phys. B360, 145
+ * 2008, PLB 662, 53 (chi chibar -> V V s-wave) [memory]; indirect.md A4 (pair-channel NR limits);
+ * Gondolo & Gelmini 1991, Nucl. Phys. B360, 145
  * (v_Mol = 2 beta_chi in the CM frame).
  *
  * Hot path: sigmaTotalGeV2 / sigmaVByChannelGeV2 are called ~1e3 times per model point; everything
@@ -67,37 +82,46 @@ export interface AnnihilationOptions {
 /** Name of the mediator-pair channel in the Annihilation contract. */
 export const MEDIATOR_PAIR_CHANNEL = 'med_med';
 
-/** Coefficients of the mediator-pair channel: sigma v = a + b v^2, GeV^-2 (indirect.md A4). */
-export interface MediatorPairCoefficients {
-  readonly aGeV2: number;
-  readonly bGeV2: number;
+/**
+ * Per-point constants of the exact chi chibar -> med med cross section (see the head comment):
+ * sigma v_Mol = norm sqrt(e/sh) / (sh w^2) [xr c1 + x^2 c2 H(x) + 2 n0], with the polynomials in
+ * d = s/m_chi^2 - 4 stored as coefficients. Depends only on g_chi, m_chi, m_med and the mediator.
+ */
+interface PairConstants {
+  /** r = m_med^2 / m_chi^2 */
+  readonly r: number;
+  /** g_chi^4 / (8 pi m_chi^2), GeV^-2 */
+  readonly norm: number;
+  /** n0 = n00 + n01 d + n02 d^2 + n03 d^3 */
+  readonly n0: readonly [number, number, number, number];
+  /** c1 (independent of d) */
+  readonly c1: number;
+  /** c2 = c20 + c21 d + c22 d^2 */
+  readonly c2: readonly [number, number, number];
 }
 
-/**
- * The A4 expansion of chi chibar -> med med (t/u-channel chi exchange), for m_chi > m_med; see the
- * head comment for which terms are omitted. Depends only on g_chi, m_chi, m_med and the mediator.
- */
-export function mediatorPairCoefficients(mediator: ModelPoint['mediator'], gChi: number, mChiGeV: number, mMedGeV: number): MediatorPairCoefficients {
+function pairConstants(mediator: ModelPoint['mediator'], gChi: number, mChiGeV: number, mMedGeV: number): PairConstants {
   const r = (mMedGeV * mMedGeV) / (mChiGeV * mChiGeV);
-  const g4 = gChi * gChi * gChi * gChi;
-  const m2 = mChiGeV * mChiGeV;
-  const twoMinusR = 2 - r;
-  const t4 = twoMinusR * twoMinusR * twoMinusR * twoMinusR;
-  const oneMinusR = 1 - r;
-  const sq = Math.sqrt(oneMinusR);
-  const halfR = 1 - r / 2;
-  const sWaveV = (g4 * oneMinusR * sq) / (16 * Math.PI * m2 * halfR * halfR);
+  const g2 = gChi * gChi;
+  const norm = (g2 * g2) / (8 * Math.PI * mChiGeV * mChiGeV);
   switch (mediator) {
-    case 'vector':
-      return { aGeV2: sWaveV, bGeV2: 0 };
-    case 'axial': {
-      const M4 = mMedGeV * mMedGeV * mMedGeV * mMedGeV;
-      return { aGeV2: sWaveV, bGeV2: (g4 * m2) / (12 * Math.PI * M4) };
-    }
     case 'scalar':
-      return { aGeV2: 0, bGeV2: (g4 * sq * (9 - 8 * r + 2 * r * r)) / (24 * Math.PI * m2 * t4) };
+      return { r, norm, n0: [0, 8, 0, 0], c1: -2 * (4 - r) * (4 - r), c2: [6 * r * r - 32 * r + 48, 24 - 4 * r, 1] };
     case 'pseudoscalar':
-      return { aGeV2: 0, bGeV2: (g4 * oneMinusR * oneMinusR * sq) / (24 * Math.PI * m2 * t4) };
+      return { r, norm, n0: [0, 0, 0, 0], c1: -2 * r * r, c2: [6 * r * r - 16 * r + 16, 8 - 4 * r, 1] };
+    case 'vector':
+      return { r, norm, n0: [16 - 16 * r, 16 + 4 * r, 1, 0], c1: -8 * (r + 2) * (r + 2), c2: [16 * r * r - 32 * r + 96, 48, 4] };
+    case 'axial': {
+      // the 1/r and 1/r^2 terms are the longitudinal (k_mu k_nu / M^2) parts of the Proca polarisation sum
+      const ir = 1 / r;
+      const ir2 = ir * ir;
+      return {
+        r, norm,
+        n0: [16 - 16 * r, 32 * ir2 - 32 * ir + 24 + 4 * r, (4 * ir - 1) * (4 * ir - 1), 2 * ir2],
+        c1: -8 * (4 - r) * (4 - r),
+        c2: [16 * r * r - 64 * r - 128 + 512 * ir - 256 * ir2, 192 * ir - 16 - 128 * ir2, 4 + 16 * ir - 16 * ir2],
+      };
+    }
   }
 }
 
@@ -165,7 +189,7 @@ export function buildAnnihilation(point: ModelPoint, widthMedGeV: number, option
   }
   const nF = channels.length;
   const pair = gChi !== 0 && (options.mediatorPairs ?? true) && mChi > M
-    ? mediatorPairCoefficients(mediator, gChi, mChi, M)
+    ? pairConstants(mediator, gChi, mChi, M)
     : null;
   if (pair) channels.push(Object.freeze({ name: MEDIATOR_PAIR_CHANNEL, thresholdGeV: 2 * M }));
   const nAll = channels.length;
@@ -174,8 +198,37 @@ export function buildAnnihilation(point: ModelPoint, widthMedGeV: number, option
   const F4 = Float64Array.from(fourMf2);
   const F2 = Float64Array.from(twoMf2);
   const AX = Float64Array.from(axialMass);
-  const pairA = pair ? pair.aGeV2 : 0;
-  const pairB4 = pair ? 4 * pair.bGeV2 : 0; // b v^2 = 4 b (s - 4 m^2) / s
+  // mediator-pair constants unpacked into locals for the hot path
+  const invMx2 = 1 / mx2;
+  const pr = pair ? pair.r : 0;
+  const pNorm = pair ? pair.norm : 0;
+  const [n00, n01, n02, n03] = pair ? pair.n0 : [0, 0, 0, 0];
+  const pc1 = pair ? pair.c1 : 0;
+  const [c20, c21, c22] = pair ? pair.c2 : [0, 0, 0];
+  const pRR = pr * pr - 4 * pr; // (1 - x^2) w^2 / 4 = r^2 - 4 r + sh
+  /** exact chi chibar -> med med, sigma v_Mol in GeV^-2 (s >= 4 m_chi^2 > 4 m_med^2) */
+  const pairSigmaV = (s: number): number => {
+    const d = (s - fourMx2) * invMx2; // s/m^2 - 4 = beta_chi^2 s/m^2
+    const sh = s * invMx2;
+    const e = sh - 4 * pr; // beta_med^2 s/m^2
+    const w = sh - 2 * pr;
+    const de = d * e;
+    const x2 = de / (w * w); // x = beta_chi beta_med s / (s - 2 M^2)
+    const xr = de / (4 * (pRR + sh)); // x^2 / (1 - x^2) without the cancellation of 1 - x^2
+    let h: number; // H(x) = (atanh(x)/x - 1)/x^2
+    if (x2 < 0.01) {
+      // Taylor series sum_n x^(2n)/(2n+3); the first omitted term is < 1e-16/19 relative
+      h = 1 / 3 + x2 * (1 / 5 + x2 * (1 / 7 + x2 * (1 / 9 + x2 * (1 / 11 + x2 * (1 / 13 + x2 * (1 / 15 + x2 * (1 / 17)))))));
+    } else {
+      const x = Math.sqrt(x2);
+      // atanh(x) = ln((1+x)^2 / (1-x^2)) / 2 with 1 - x^2 = 4 (r^2 - 4r + sh) / w^2 taken exactly
+      const atanh = 0.5 * Math.log(((1 + x) * (1 + x) * w * w) / (4 * (pRR + sh)));
+      h = (atanh / x - 1) / x2;
+    }
+    const n0 = n00 + d * (n01 + d * (n02 + d * n03));
+    const c2 = c20 + d * (c21 + d * c22);
+    return (pNorm * Math.sqrt(e / sh) * (xr * pc1 + x2 * c2 * h + 2 * n0)) / (sh * w * w);
+  };
 
   // One specialised loop per mediator keeps the switch out of the hot path.
   let fermionSum: (s: number, out: Float64Array) => number;
@@ -249,7 +302,7 @@ export function buildAnnihilation(point: ModelPoint, widthMedGeV: number, option
     }
     let sum = fermionSum(sGeV2, out);
     if (pair) {
-      const v = pairA + (pairB4 * (sGeV2 - fourMx2)) / sGeV2;
+      const v = pairSigmaV(sGeV2);
       out[nF] = v;
       sum += v;
     }

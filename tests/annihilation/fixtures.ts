@@ -13,6 +13,11 @@ export interface FfbarCase {
   mFGeV: number; colours: number; sGeV2: number; sigmaVGeV2: number;
 }
 export interface PairCase { mediator: MediatorKind; mChiGeV: number; mMedGeV: number; v: number; sGeV2: number; sigmaVGeV2: number }
+export interface PairNrCase { mediator: MediatorKind; mChiGeV: number; mMedGeV: number; r: number; aGeV2: number; bGeV2: number }
+export interface PairMajoranaCase {
+  mediator: MediatorKind; mChiGeV: number; mMedGeV: number; v: number; sGeV2: number;
+  msqRatioMajoranaOverDirac: number[]; sigmaVMajoranaGeV2: number; sigmaVDiracGeV2: number;
+}
 export interface LoopCase { kind: 'scalar' | 'pseudoscalar'; tau: number; re: number; im: number }
 export interface WidthCase {
   point: Omit<ModelPoint, 'width_med'>;
@@ -21,7 +26,7 @@ export interface WidthCase {
 }
 export interface AnnihilationFixtures {
   vevGeV: number; alphaS: number; fermions: Fermion[];
-  ffbar: FfbarCase[]; pair: PairCase[]; loops: LoopCase[]; widths: WidthCase[];
+  ffbar: FfbarCase[]; pair: PairCase[]; pairNr: PairNrCase[]; pairMajorana: PairMajoranaCase[]; loops: LoopCase[]; widths: WidthCase[];
 }
 
 const path = fileURLToPath(new URL('../fixtures/annihilation/annihilation_fixtures.json', import.meta.url));

@@ -6,6 +6,7 @@
  */
 import type { LedgerView } from '../plot/ledger-view.js';
 import { quoteId } from '../plot/ledger-view.js';
+import { labelText } from '../plot/notation.js';
 
 export interface PlaneChoice {
   readonly heading: string;
@@ -25,7 +26,7 @@ export function standardPlanes(view: LedgerView, scanId: number): { planes: Plan
   const wanted: PlaneChoice[] = [
     { heading: 'Spin-independent DM-proton cross section', x: 'm_chi', y: 'sigma_si_p_cm2', color },
     { heading: 'Annihilation cross section today', x: 'm_chi', y: 'sigv0_cm3s', color },
-    { heading: `Coupling ${coupling}`, x: 'm_chi', y: coupling, color },
+    { heading: `Coupling ${labelText(coupling)}`, x: 'm_chi', y: coupling, color },
     { heading: 'Mediator mass', x: 'm_chi', y: 'm_med', color },
   ];
   const planes: PlaneChoice[] = [];

@@ -24,6 +24,7 @@ import type { ChunkRange, Plan } from './plan.js';
 import { createProgress, formatDuration, progressMode, type ProgressReporter } from './progress.js';
 import { canonicalJson, loadSpecFile, makePlan, resolvedSpecJson, specHash, type ScanSpec } from './spec.js';
 import type { Transport } from './transport.js';
+import { createRedisTransport } from './redis/transport.js';
 
 export interface RunOptions {
   readonly specPath: string;
@@ -40,6 +41,8 @@ export interface RunOptions {
   readonly physicsModule?: string;
   /** a transport other than the embedded pool (e.g. Redis); it receives `work` in open() */
   readonly transport?: Transport;
+  /** evaluate on the workers of this Redis (redis:// or rediss://) instead of the embedded pool; probed first */
+  readonly redisUrl?: string;
   /** install SIGINT/SIGTERM handlers (the CLI does) */
   readonly handleSignals?: boolean;
   /** where messages go; default process.stderr */
@@ -215,8 +218,12 @@ export async function runScan(options: RunOptions): Promise<RunSummary> {
   const decision = decide(dbPath, spec, hash, knobsJson, version, options.newScan ?? false);
   decision.warnings.forEach(log);
 
-  const transport = options.transport ?? new EmbeddedPool({ workers: options.workers, physicsModule: options.physicsModule });
-  const workers = options.transport ? 1 : (transport as EmbeddedPool).workers;
+  const transport =
+    options.transport ??
+    (options.redisUrl
+      ? await createRedisTransport({ url: options.redisUrl, dbPath, codeVersion: version, log })
+      : new EmbeddedPool({ workers: options.workers, physicsModule: options.physicsModule }));
+  const workers = transport instanceof EmbeddedPool ? transport.workers : 1;
   let chunkSize: number;
   if (decision.existing) {
     chunkSize = decision.existing.chunkSize;

@@ -1,5 +1,5 @@
 /**
- * `darksieve run SPEC [--db FILE] [--workers N] [--chunk N] [--quiet] [--new]`: starts a scan, or
+ * `darksieve run SPEC [--db FILE] [--workers N] [--chunk N] [--quiet] [--new] [--redis URL]`: starts a scan, or
  * resumes it when the same command runs again (only chunks not done are evaluated).
  */
 import type { Command } from 'commander';
@@ -12,6 +12,8 @@ export interface RunCommandOptions {
   readonly chunk?: string;
   readonly quiet?: boolean;
   readonly new?: boolean;
+  /** Redis URL: evaluate on `darksieve worker` processes instead of the embedded pool */
+  readonly redis?: string;
 }
 
 const optionalInt = (text: string | undefined): number | undefined => (text === undefined ? undefined : Number(text));
@@ -20,7 +22,7 @@ const optionalInt = (text: string | undefined): number | undefined => (text === 
 export async function runAndReport(specPath: string, opts: RunCommandOptions): Promise<RunSummary> {
   const summary = await runScan({
     specPath, dbPath: opts.db, workers: optionalInt(opts.workers), chunkSize: optionalInt(opts.chunk),
-    quiet: opts.quiet ?? false, newScan: opts.new ?? false, handleSignals: true,
+    quiet: opts.quiet ?? false, newScan: opts.new ?? false, handleSignals: true, redisUrl: opts.redis,
   });
   const out = describeRun(summary);
   process.stdout.write(`${out.join('\n')}\n`);
@@ -38,7 +40,8 @@ export function registerRun(program: Command): void {
     .option('--chunk <n>', 'points per chunk for a new scan (default: about 1.5 s of compute, from a short calibration)')
     .option('--quiet', 'no progress output')
     .option('--new', 'start a new scan id even if the ledger holds a scan of this name')
+    .option('--redis <url>', 'evaluate on `darksieve worker` processes through this Redis (redis:// or rediss://; default: $REDIS_URL if set, else the embedded pool)')
     .action(async (spec: string, opts: RunCommandOptions) => {
-      await runAndReport(spec, opts);
+      await runAndReport(spec, { ...opts, redis: opts.redis ?? (process.env.REDIS_URL || undefined) });
     });
 }

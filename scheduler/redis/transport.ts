@@ -25,9 +25,9 @@ import { Queue, Worker, type ConnectionOptions, type Job } from 'bullmq';
 import type { Redis } from 'ioredis';
 import type { ChunkRange } from '../plan.js';
 import { decodeChunkResult, type ChunkOutcome, type EncodedChunkResult, type ScanWork, type Transport } from '../transport.js';
-import { bullConnection, openClient, redactRedisUrl, redisOptionsFromUrl, serverRunId } from './connection.js';
+import { bullConnection, openClient, probeRedis, redactRedisUrl, redisOptionsFromUrl, redisPrefix, serverRunId } from './connection.js';
 import {
-  chunkJobId, liveWorkers, resultQueueName, scanKeyOf, scanSetKey, workQueueName,
+  chunkJobId, ledgerTag, liveWorkers, resultQueueName, scanKeyOf, scanSetKey, workQueueName,
   type ChunkJobData, type ScanAnnouncement,
 } from './keys.js';
 
@@ -112,6 +112,21 @@ export class RedisTransport implements Transport {
   async open(work: ScanWork): Promise<void> {
     if (this.work) throw new Error('the Redis transport is already open');
     this.work = work;
+    try {
+      await this.start();
+    } catch (err) {
+      // leave whatever a previous run left in Redis as it is; just let go of the connections
+      this.closed = true;
+      if (this.pollTimer) clearInterval(this.pollTimer);
+      await this.results?.close(true).catch(() => undefined);
+      await this.queue?.close().catch(() => undefined);
+      this.client?.disconnect();
+      throw err;
+    }
+  }
+
+  private async start(): Promise<void> {
+    const work = this.work!;
     const { prefix } = this.opts;
     this.queueName = workQueueName(work.scanKey, this.opts.ledgerTag);
     this.client = openClient(redisOptionsFromUrl(this.opts.url), (err) => this.noteError(err));
@@ -316,4 +331,13 @@ export class RedisTransport implements Transport {
     this.lastError = message;
     this.log(`Redis ${redactRedisUrl(this.opts.url)}: ${message} (waiting for it; the scan resumes when it answers)`);
   }
+}
+
+/**
+ * The transport `darksieve run --redis URL` uses: probes the server first (fails fast, nothing
+ * written), then keys the scan's queue by this host and ledger path so resuming finds it again.
+ */
+export async function createRedisTransport(o: { url: string; dbPath: string; codeVersion: string; log?: (line: string) => void }): Promise<RedisTransport> {
+  await probeRedis(o.url);
+  return new RedisTransport({ url: o.url, prefix: redisPrefix(), ledgerTag: ledgerTag(o.dbPath), codeVersion: o.codeVersion, log: o.log });
 }

@@ -210,11 +210,15 @@ export function buildAnnihilation(point: ModelPoint, widthMedGeV: number, option
   const pairSigmaV = (s: number): number => {
     const d = (s - fourMx2) * invMx2; // s/m^2 - 4 = beta_chi^2 s/m^2
     const sh = s * invMx2;
+    const ish = 1 / sh;
     const e = sh - 4 * pr; // beta_med^2 s/m^2
     const w = sh - 2 * pr;
+    const w2 = w * w;
+    const iw2 = 1 / w2;
+    const iq = 1 / (pRR + sh); // 4 / ((1 - x^2) w^2)
     const de = d * e;
-    const x2 = de / (w * w); // x = beta_chi beta_med s / (s - 2 M^2)
-    const xr = de / (4 * (pRR + sh)); // x^2 / (1 - x^2) without the cancellation of 1 - x^2
+    const x2 = de * iw2; // x = beta_chi beta_med s / (s - 2 M^2)
+    const xr = 0.25 * de * iq; // x^2 / (1 - x^2) without the cancellation of 1 - x^2
     let h: number; // H(x) = (atanh(x)/x - 1)/x^2
     if (x2 < 0.01) {
       // Taylor series sum_n x^(2n)/(2n+3); the first omitted term is < 1e-16/19 relative
@@ -222,12 +226,12 @@ export function buildAnnihilation(point: ModelPoint, widthMedGeV: number, option
     } else {
       const x = Math.sqrt(x2);
       // atanh(x) = ln((1+x)^2 / (1-x^2)) / 2 with 1 - x^2 = 4 (r^2 - 4r + sh) / w^2 taken exactly
-      const atanh = 0.5 * Math.log(((1 + x) * (1 + x) * w * w) / (4 * (pRR + sh)));
-      h = (atanh / x - 1) / x2;
+      const atanh = 0.5 * Math.log((1 + x) * (1 + x) * w2 * 0.25 * iq);
+      h = (atanh - x) / (x * x2);
     }
     const n0 = n00 + d * (n01 + d * (n02 + d * n03));
     const c2 = c20 + d * (c21 + d * c22);
-    return (pNorm * Math.sqrt(e / sh) * (xr * pc1 + x2 * c2 * h + 2 * n0)) / (sh * w * w);
+    return pNorm * Math.sqrt(e * ish) * (xr * pc1 + x2 * c2 * h + 2 * n0) * ish * iw2;
   };
 
   // One specialised loop per mediator keeps the switch out of the hot path.

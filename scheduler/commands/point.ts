@@ -9,7 +9,6 @@ import { InvalidInputError, type Issue } from '../../physics/issue.js';
 import { prepare, evaluate } from '../../physics/evaluate.js';
 import { FIXED_OBSERVABLES } from '../../physics/observables.js';
 import { EMPTY_SETUP, type ScanPhysicsSetup } from '../../physics/setup.js';
-import { loadSpecSetup } from '../spec.js';
 
 /** Splits `name=value` arguments; a malformed one is an issue naming it. */
 export function parseAssignments(args: readonly string[]): { raw: Record<string, string>; issues: Issue[] } {
@@ -56,7 +55,8 @@ export function registerPoint(program: Command): void {
       const { raw, issues } = parseAssignments(assignments);
       const parsed = parsePoint(raw);
       const all = [...issues, ...parsed.issues];
-      const setup: ScanPhysicsSetup = opts.spec ? await loadSpecSetup(opts.spec) : EMPTY_SETUP;
+      // the spec module (zod, mathjs) is loaded only when a spec is given
+      const setup: ScanPhysicsSetup = opts.spec ? await (await import('../spec.js')).loadSpecSetup(opts.spec) : EMPTY_SETUP;
       if (all.length > 0 || !parsed.point) throw new InvalidInputError(all);
       const point = parsed.point;
       const prepared = prepare(setup);

@@ -99,7 +99,12 @@ export function planeImage(view: LedgerView, ledgerFile: string, opts: PlaneOpti
 
   const notes = [countsNote(data, constraintSet, opts.survivorsOnly ?? false), [modeNote(data), ...extraNotes].filter(Boolean).join(' · ')];
   const title = `${scan.name} (scan ${scanId})`;
-  const svg = renderPlane(data, { title, notes, overlays, width: opts.width, height: opts.height });
+  const provenance = {
+    ledger: path.basename(ledgerFile), scan: scanId, scanName: scan.name, specHash: scan.spec_hash, codeVersion: scan.code_version,
+    constantsEdition: typeof scan.constants_edition === 'string' ? scan.constants_edition : null,
+    constraintSet, x: opts.x, y: opts.y, color: opts.color ?? null, survivorsOnly: opts.survivorsOnly ?? false,
+  };
+  const svg = renderPlane(data, { title, notes, overlays, width: opts.width, height: opts.height, provenance });
   return { svg, data, notes };
 }
 

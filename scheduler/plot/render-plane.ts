@@ -38,6 +38,8 @@ export interface RenderOptions {
   readonly overlays: readonly Overlay[];
   readonly width?: number;
   readonly height?: number;
+  /** provenance stored in the SVG's <metadata> (scan, spec hash, code version, constraint set...) */
+  readonly provenance?: Readonly<Record<string, string | number | boolean | null>>;
 }
 
 /** The part of a linkedom element this module touches (the project compiles without DOM types). */
@@ -280,5 +282,6 @@ export function renderPlane(data: PlaneData, options: RenderOptions): string {
   parts.push(`<text aria-label="y label" transform="translate(20,${yMid}) rotate(-90)" font-size="13" text-anchor="middle">${labelTspans(data.y.column, 13)}</text>`);
   const desc = `${labelText(data.y.column)} versus ${labelText(data.x.column)}`;
   return `<svg xmlns="http://www.w3.org/2000/svg" width="${width}" height="${height}" viewBox="0 0 ${width} ${height}" font-family="${FONT_FAMILY}" role="img" aria-label="${escapeXml(desc)}">` +
-    `<title>${escapeXml(`${options.title}: ${desc}`)}</title><desc>${escapeXml(options.notes.filter(Boolean).join('. '))}</desc>${parts.join('')}</svg>`;
+    `<title>${escapeXml(`${options.title}: ${desc}`)}</title><desc>${escapeXml(options.notes.filter(Boolean).join('. '))}</desc>` +
+    `${options.provenance ? `<metadata>${escapeXml(JSON.stringify(options.provenance))}</metadata>` : ''}${parts.join('')}</svg>`;
 }

@@ -115,6 +115,9 @@ describe('grid planes', () => {
     const doc = parseSvg(out);
     expect(doc.querySelectorAll('[aria-description="cells"] rect')).toHaveLength(600);
     expect(text(doc, 'x label')).toBe('mχ [GeV]');
+    expect(JSON.parse(doc.querySelector('metadata')?.textContent ?? '{}')).toMatchObject({
+      scan: 1, specHash: 'sha256:test', codeVersion: 'test-0', constantsEdition: 'CODATA2018+PDG2024+Planck2018', constraintSet: 'default',
+    });
     expect(text(doc, 'y label')).toBe('mmed [GeV]');
     // log axes chosen automatically (both span 2 decades or more): tick labels are powers of ten
     expect(doc.documentElement.textContent).toContain('10²');

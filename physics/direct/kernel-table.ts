@@ -61,7 +61,7 @@ import {
 // ---------------------------------------------------------------- numerical knobs
 /** Node spacing in t = ln((m_chi - m_thr)/GeV); measured errors are in the module comment. */
 export const TABLE_STEP = 1 / 16;
-/** Points of the Lagrange interpolation stencil (4 = cubic). */
+/** Points of the Lagrange interpolation stencil (cubic; the evaluation is unrolled for 4). */
 export const STENCIL_POINTS = 4;
 /** Masses with m_chi - m_thr below this fraction of m_thr use the exact quadrature. */
 export const THRESHOLD_GAP_REL = 1e-3;
@@ -319,16 +319,19 @@ class IsotopeTable {
   private evaluate(base: number, w: Float64Array, pHat: Float64Array | null, weight: number): number {
     const v = this.values;
     const stride = this.stride;
-    let lnJ = 0;
-    for (let j = 0; j < STENCIL_POINTS; j++) lnJ += w[j]! * v[base + j * stride]!;
-    const j0 = Math.exp(lnJ);
+    const w0 = w[0]!;
+    const w1 = w[1]!;
+    const w2 = w[2]!;
+    const w3 = w[3]!;
+    const s2 = 2 * stride;
+    const s3 = 3 * stride;
+    const j0 = Math.exp(w0 * v[base]! + w1 * v[base + stride]! + w2 * v[base + s2]! + w3 * v[base + s3]!);
     if (!pHat) return j0;
     const first = base + 1 + weight * this.count;
     let avg = 0;
     for (let q = 0; q < this.count; q++) {
-      let r = 0;
-      for (let j = 0; j < STENCIL_POINTS; j++) r += w[j]! * v[first + j * stride + q]!;
-      avg += pHat[q]! * r;
+      const i = first + q;
+      avg += pHat[q]! * (w0 * v[i]! + w1 * v[i + stride]! + w2 * v[i + s2]! + w3 * v[i + s3]!);
     }
     return j0 * avg;
   }
@@ -346,6 +349,9 @@ export class DetectorKernelTable {
   /** (E_j / E_lo)^a at the Chebyshev energies, a < MOMENT_WEIGHTS */
   private readonly weightValues: Float64Array[];
   private readonly scaled: Float64Array;
+  /** window used by the Chebyshev basis, keV */
+  private readonly eLoKeV: number;
+  private readonly eHiKeV: number;
   private readonly pair = new Float64Array(2);
 
   constructor(private readonly det: PreparedDetector, private readonly shm: ShmEta, private readonly rhoGeVcm3: number) {
@@ -367,6 +373,8 @@ export class DetectorKernelTable {
     this.chebEnergiesKeV = basis ? pts.x.map((x) => Math.exp(0.5 * (basis.lnHiKeV - basis.lnLoKeV) * x + 0.5 * (basis.lnHiKeV + basis.lnLoKeV))) : new Float64Array(0);
     this.pValues = new Float64Array(terms);
     this.scaled = new Float64Array(terms);
+    this.eLoKeV = basis ? Math.exp(basis.lnLoKeV) : 0;
+    this.eHiKeV = det.hiKeV;
     this.weightValues = Array.from({ length: MOMENT_WEIGHTS }, (_, a) =>
       this.chebEnergiesKeV.map((e) => (basis ? (e / Math.exp(basis.lnLoKeV)) ** a : 1)));
     this.tables = eEff === null ? [] : det.isotopes.map((iso) => new IsotopeTable(det, iso, shm, eEff, basis, pts.cos));
@@ -389,22 +397,18 @@ export class DetectorKernelTable {
       const p = m2 / (m2 + twoMA * this.chebEnergiesKeV[j]!);
       this.pValues[j] = p * p;
     }
-    let best = 0;
-    let bestSpread = Infinity;
-    for (let a = 0; a < MOMENT_WEIGHTS; a++) {
-      const wa = this.weightValues[a]!;
-      let lo = Infinity;
-      let hi = 0;
-      for (let j = 0; j < n; j++) {
-        const f = this.pValues[j]! * wa[j]!;
-        if (f < lo) lo = f;
-        if (f > hi) hi = f;
-      }
-      if (hi / lo < bestSpread) {
-        bestSpread = hi / lo;
-        best = a;
-      }
-    }
+    // P w_a^-1 ~ y^a / (1 + y)^2 with y = q^2 / M^2: monotone for a = 0, 2; for a = 1 its maximum
+    // is at y = 1. Spreads from the window ends (and y = 1 when inside) decide.
+    const yLo = (twoMA * this.eLoKeV) / m2;
+    const yHi = (twoMA * this.eHiKeV) / m2;
+    const r0 = (1 + yHi) / (1 + yLo);
+    const spread0 = r0 * r0;
+    const r2 = (yHi * (1 + yLo)) / (yLo * (1 + yHi));
+    const spread2 = r2 * r2;
+    const f1Lo = yLo / ((1 + yLo) * (1 + yLo));
+    const f1Hi = yHi / ((1 + yHi) * (1 + yHi));
+    const spread1 = (yLo < 1 && yHi > 1 ? 0.25 : Math.max(f1Lo, f1Hi)) / Math.min(f1Lo, f1Hi);
+    const best = spread0 <= spread1 && spread0 <= spread2 ? 0 : spread1 <= spread2 ? 1 : 2;
     const wb = this.weightValues[best]!;
     for (let j = 0; j < n; j++) this.scaled[j] = this.pValues[j]! * wb[j]!;
     return best;

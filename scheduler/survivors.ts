@@ -19,7 +19,7 @@ export const OUTPUT_FORMATS = ['table', 'csv', 'json'] as const;
 export type OutputFormat = (typeof OUTPUT_FORMATS)[number];
 
 export interface SurvivorQuery {
-  readonly scanId: number | string;
+  readonly scanId: number;
   readonly set: string;
   /** point columns to return, in order (scan-context.ts scanColumns().all) */
   readonly columns: readonly string[];

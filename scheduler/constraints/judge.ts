@@ -44,7 +44,7 @@ export interface ConstraintCount {
 }
 
 export interface JudgeSummary {
-  readonly scanId: number | string;
+  readonly scanId: number;
   readonly set: string;
   /** points judged (points stored for the scan) */
   readonly points: number;
@@ -58,10 +58,10 @@ const quote = (column: string): string => `"${column.replace(/"/g, '""')}"`;
 /** Creates the verdict tables if needed and adds a column for each constraint not seen before. */
 function ensureVerdictTables(db: Database, columns: readonly string[]): void {
   db.exec(`CREATE TABLE IF NOT EXISTS verdicts (
-    scan_id NOT NULL, constraint_set TEXT NOT NULL, point_id INTEGER NOT NULL, survives INTEGER NOT NULL,
+    scan_id INTEGER NOT NULL, constraint_set TEXT NOT NULL, point_id INTEGER NOT NULL, survives INTEGER NOT NULL,
     PRIMARY KEY (scan_id, constraint_set, point_id)) WITHOUT ROWID`);
   db.exec(`CREATE TABLE IF NOT EXISTS constraint_sets (
-    scan_id NOT NULL, name TEXT NOT NULL, definition_json TEXT NOT NULL, judged_at TEXT,
+    scan_id INTEGER NOT NULL, name TEXT NOT NULL, definition_json TEXT NOT NULL, judged_at TEXT,
     points INTEGER, survivors INTEGER, summary_json TEXT, PRIMARY KEY (scan_id, name))`);
   const existing = new Set((db.prepare('SELECT name FROM pragma_table_info(?)').pluck().all('verdicts') as string[]));
   for (const c of columns) {
@@ -77,7 +77,7 @@ function definitionJson(compiled: CompiledConstraints): string {
  * Refuses (exit 2) a set name that already holds a different definition for this scan. Read-only,
  * so commands can call it before writing anything.
  */
-export function checkSetName(db: Database, scanId: number | string, set: string, compiled: CompiledConstraints): void {
+export function checkSetName(db: Database, scanId: number, set: string, compiled: CompiledConstraints): void {
   const hasTable = db.prepare("SELECT 1 FROM sqlite_master WHERE type = 'table' AND name = 'constraint_sets'").get();
   if (!hasTable) return;
   const row = db.prepare('SELECT definition_json FROM constraint_sets WHERE scan_id = ? AND name = ?').get(scanId, set) as
@@ -96,7 +96,7 @@ export function checkSetName(db: Database, scanId: number | string, set: string,
  * Judges every stored point of a scan against a compiled constraint set and stores the verdicts and
  * the summary under `set`. Returns the summary.
  */
-export function judgeScan(db: Database, scanId: number | string, set: string, compiled: CompiledConstraints, batchSize = JUDGE_BATCH): JudgeSummary {
+export function judgeScan(db: Database, scanId: number, set: string, compiled: CompiledConstraints, batchSize = JUDGE_BATCH): JudgeSummary {
   checkSetName(db, scanId, set, compiled);
   const columns = compiled.columns;
   const nc = columns.length;
@@ -167,7 +167,7 @@ export function judgeScan(db: Database, scanId: number | string, set: string, co
 }
 
 /** The stored summary of a set, or undefined when the set was never completely judged. */
-export function readSummary(db: Database, scanId: number | string, set: string): JudgeSummary | undefined {
+export function readSummary(db: Database, scanId: number, set: string): JudgeSummary | undefined {
   const row = db.prepare('SELECT judged_at, points, survivors, summary_json FROM constraint_sets WHERE scan_id = ? AND name = ?').get(scanId, set) as
     | { judged_at: string | null; points: number; survivors: number; summary_json: string | null }
     | undefined;
@@ -176,7 +176,7 @@ export function readSummary(db: Database, scanId: number | string, set: string):
 }
 
 /** Names of the judged sets of a scan, most recent first. */
-export function listSets(db: Database, scanId: number | string): string[] {
+export function listSets(db: Database, scanId: number): string[] {
   const hasTable = db.prepare("SELECT 1 FROM sqlite_master WHERE type = 'table' AND name = 'constraint_sets'").get();
   if (!hasTable) return [];
   return db.prepare('SELECT name FROM constraint_sets WHERE scan_id = ? AND judged_at IS NOT NULL ORDER BY judged_at DESC, name').pluck().all(scanId) as string[];

@@ -21,7 +21,7 @@ export function openLedger(file: string, readonly: boolean): Database.Database {
 }
 
 export interface StoredScan {
-  readonly id: number | string;
+  readonly id: number;
   readonly name: string;
   readonly status: string;
   readonly spec: ScanSpec;
@@ -33,7 +33,7 @@ export function findScan(db: Database.Database, ref?: string): StoredScan {
   if (!hasScans) {
     throw new InvalidInputError([{ code: 'not_a_ledger', path: 'DB', message: 'this file has no scans table; is it a darksieve ledger?', allowed: 'a ledger written by darksieve run' }]);
   }
-  const rows = db.prepare('SELECT id, name, status, spec_json FROM scans ORDER BY id').all() as { id: number | string; name: string; status: string; spec_json: string }[];
+  const rows = db.prepare('SELECT id, name, status, spec_json FROM scans ORDER BY id').all() as { id: number; name: string; status: string; spec_json: string }[];
   const list = rows.map((r) => `${r.id} (${r.name})`).join(', ') || '(none)';
   let row: (typeof rows)[number] | undefined;
   if (ref === undefined) {

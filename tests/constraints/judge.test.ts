@@ -163,4 +163,10 @@ describe('judgeScan', () => {
       sparse.close();
     }
   });
+
+  it('regression: scan_id was stored as REAL 1.0 (bound JS number in an untyped column); ids are integers', () => {
+    const types = db.prepare('SELECT DISTINCT typeof(scan_id), typeof(point_id), typeof(survives), typeof(relic) FROM verdicts WHERE constraint_set = ?').raw(true).all('a');
+    expect(types).toEqual([['integer', 'integer', 'integer', 'integer']]);
+    expect(db.prepare('SELECT DISTINCT typeof(scan_id) FROM constraint_sets').pluck().all()).toEqual(['integer']);
+  });
 });

@@ -17,7 +17,8 @@
  * spin average 1/4, factor 1/2 for identical bosons, three Proca polarisations with
  * sum eps eps* = -g + k k / M^2), integrated over the angle in closed form. Derived here with sympy
  * from explicit 4x4 Dirac traces (the spin-summed |M|^2 times (t - m^2)^2 (u - m^2)^2 is even and
- * quartic in cos(theta); tests/fixtures/annihilation/derive_pair_closed_form.py). With r = M^2/m_chi^2, sh = s/m_chi^2, d = sh - 4, e = sh - 4r, w = sh - 2r:
+ * quartic in cos(theta); tests/fixtures/annihilation/derive_pair_closed_form.py).
+ * With r = M^2/m_chi^2, sh = s/m_chi^2, d = sh - 4, e = sh - 4r, w = sh - 2r:
  *   sigma v_Mol = g_chi^4 sqrt(e/sh) / (8 pi m_chi^2 sh w^2) * [ x^2/(1-x^2) c1 + x^2 c2 H(x) + 2 n0 ],
  *   x^2 = d e / w^2,  x^2/(1-x^2) = d e / (4 (r^2 - 4r + sh)),  H(x) = (atanh(x)/x - 1)/x^2
  *   (x = beta_chi beta_med s / (s - 2M^2) < 1; H by its Taylor series sum x^(2n)/(2n+3) for x^2 < 0.01),

@@ -32,6 +32,8 @@ export interface ScanRecord {
   readonly specHash: string;
   readonly codeVersion: string;
   readonly createdAt: string;
+  /** last status change (for a running scan: when this run started) */
+  readonly updatedAt: string;
   readonly status: ScanStatus;
   readonly constantsEdition: string;
   readonly knobsJson: string;
@@ -102,7 +104,7 @@ const quote = (name: string): string => `"${name.replace(/"/g, '""')}"`;
 const now = (): string => new Date().toISOString();
 
 interface ScanRow {
-  id: number; name: string; spec_json: string; spec_hash: string; code_version: string; created_at: string;
+  id: number; name: string; spec_json: string; spec_hash: string; code_version: string; created_at: string; updated_at: string;
   status: ScanStatus; constants_edition: string; knobs_json: string; observables_json: string;
   n_points: number; chunk_size: number; n_chunks: number;
 }
@@ -110,7 +112,7 @@ interface ScanRow {
 function toRecord(r: ScanRow): ScanRecord {
   return {
     id: r.id, name: r.name, specJson: r.spec_json, specHash: r.spec_hash, codeVersion: r.code_version,
-    createdAt: r.created_at, status: r.status, constantsEdition: r.constants_edition, knobsJson: r.knobs_json,
+    createdAt: r.created_at, updatedAt: r.updated_at, status: r.status, constantsEdition: r.constants_edition, knobsJson: r.knobs_json,
     observables: JSON.parse(r.observables_json) as string[], nPoints: r.n_points, chunkSize: r.chunk_size, nChunks: r.n_chunks,
   };
 }

@@ -25,6 +25,12 @@ import { createProgress, formatDuration, progressMode, type ProgressReporter } f
 import { canonicalJson, loadSpecFile, makePlan, resolvedSpecJson, specHash, type ScanSpec } from './spec.js';
 import type { Transport } from './transport.js';
 import { createRedisTransport } from './redis/transport.js';
+import { compileConstraints, type CompiledConstraints } from './constraints/compile.js';
+import { formatSummary, judgeScan, type JudgeSummary } from './constraints/judge.js';
+import { contextFromSpec } from './constraints/scan-context.js';
+
+/** The constraint set name under which a run judges its spec's own constraints. */
+export const SPEC_CONSTRAINT_SET = 'spec';
 
 export interface RunOptions {
   readonly specPath: string;
@@ -63,6 +69,10 @@ export interface RunSummary {
   readonly elapsedMs: number;
   /** the command that resumes this scan */
   readonly resumeCommand: string;
+  /** verdicts of the spec's constraints (set SPEC_CONSTRAINT_SET), when the scan is done and has any */
+  readonly judged: JudgeSummary | null;
+  /** why the constraints were not judged, when they were not */
+  readonly judgeNote: string | null;
 }
 
 /** Target compute per chunk: long enough that dispatch overhead is negligible, short enough that a crash loses little. */
@@ -118,6 +128,17 @@ export async function calibrate(spec: ScanSpec, engine: PhysicsEngine, budgetMs 
     if (ms > budgetMs) break;
   }
   return { points, msPerPoint: ms / points, errors };
+}
+
+/**
+ * Compiles the spec's constraints against the scan's columns (curve files relative to the spec file);
+ * null when the spec has none. Throws InvalidInputError with every issue.
+ */
+export function compileSpecConstraints(spec: ScanSpec, specPath: string): CompiledConstraints | null {
+  if (spec.constraints.length === 0) return null;
+  const { compiled, issues } = compileConstraints(spec.constraints, contextFromSpec(spec, path.dirname(path.resolve(specPath))));
+  if (!compiled) throw new InvalidInputError(issues);
+  return compiled;
 }
 
 /** Chunk size giving about CHUNK_TARGET_MS per chunk, and at least 4 chunks per worker when possible. */
@@ -208,6 +229,7 @@ export async function runScan(options: RunOptions): Promise<RunSummary> {
   const spec = loadSpecFile(options.specPath);
   const engine = await loadPhysicsEngine(options.physicsModule);
   const prepared = preparePhysics(spec, engine);
+  const constraints = compileSpecConstraints(spec, options.specPath);
   const resolved = resolvedSpecJson(spec);
   const hash = specHash(resolved);
   const knobsJson = canonicalJson(prepared.knobs ?? {});
@@ -322,12 +344,25 @@ export async function runScan(options: RunOptions): Promise<RunSummary> {
     const complete = after.chunksDone === plan.chunkCount;
     const status: ScanStatus = complete ? 'done' : stopping || wasAbandoned ? 'interrupted' : 'incomplete';
     ledger.setStatus(scan.id, status);
-    ledger.checkpoint();
+    let judged: JudgeSummary | null = null;
+    let judgeNote: string | null = null;
+    if (constraints && status === 'done') {
+      try {
+        constraints.warnings.forEach((w) => log(`warning: ${w}`));
+        judged = judgeScan(ledger.connection, scan.id, SPEC_CONSTRAINT_SET, constraints);
+      } catch (err) {
+        if (!(err instanceof InvalidInputError)) throw err;
+        judgeNote = `the spec's constraints were not judged: ${err.message}; use darksieve judge with a constraints file and another --set`;
+      }
+    } else if (constraints) {
+      judgeNote = 'the spec\'s constraints are judged when the scan is complete';
+    }
     const summary: RunSummary = {
       dbPath, scanId: scan.id, scanName: spec.name, status, resumed: decision.existing !== null,
       pointsTotal: plan.total, pointsDone: after.pointsDone, pointsThisRun, chunksFailed: after.chunksFailed,
-      erroredPoints: ledger.erroredPoints(scan.id), elapsedMs: performance.now() - started, resumeCommand,
+      erroredPoints: ledger.erroredPoints(scan.id), elapsedMs: performance.now() - started, resumeCommand, judged, judgeNote,
     };
+    ledger.checkpoint();
     return summary;
   } finally {
     removeSignals.forEach((f) => f());
@@ -343,6 +378,8 @@ export function describeRun(s: RunSummary): string[] {
   if (s.erroredPoints > 0) lines.push(`${s.erroredPoints} points could not be evaluated; their flags hold the error`);
   if (s.chunksFailed > 0) lines.push(`${s.chunksFailed} chunks failed; run the same command again to retry them`);
   if (s.status !== 'done') lines.push(`resume with: ${s.resumeCommand}`);
+  if (s.judged) lines.push(formatSummary(s.judged, `${s.scanId} (${s.scanName})`).trimEnd());
+  if (s.judgeNote) lines.push(s.judgeNote);
   lines.push(`ledger: ${s.dbPath}`);
   return lines;
 }

@@ -1,7 +1,8 @@
 /**
  * Progress of the scans in a ledger, read over a readonly connection so it works from another
  * terminal while `run` writes (WAL readers see a consistent snapshot and never block the writer).
- * The rate is measured from the chunks finished in the last RATE_WINDOW_S seconds.
+ * The rate is measured from the chunks finished in the last RATE_WINDOW_S seconds (or since the run
+ * started, when that is more recent).
  */
 import { LedgerReader, type ScanStatus } from './ledger.js';
 import { formatDuration } from './progress.js';
@@ -39,14 +40,15 @@ export interface LedgerStatus {
 export function ledgerStatus(dbPath: string): LedgerStatus {
   const reader = LedgerReader.openReadonly(dbPath);
   try {
-    const since = new Date(Date.now() - RATE_WINDOW_S * 1000).toISOString();
+    const nowMs = Date.now();
     const recent = reader.connection.prepare(
-      `SELECT COALESCE(SUM(n), 0) AS points, MIN(finished_at) AS first FROM chunks WHERE scan_id = ? AND status = 'done' AND finished_at >= ?`,
+      `SELECT COALESCE(SUM(n), 0) AS points FROM chunks WHERE scan_id = ? AND status = 'done' AND finished_at >= ?`,
     );
     const scans = reader.scans().map((s): ScanStatusReport => {
       const p = reader.progress(s.id);
-      const r = recent.get(s.id, since) as { points: number; first: string | null };
-      const rate = s.status === 'running' && r.points > 0 ? r.points / RATE_WINDOW_S : 0;
+      const windowS = Math.min(RATE_WINDOW_S, Math.max(1, (nowMs - Date.parse(s.updatedAt)) / 1000));
+      const r = recent.get(s.id, new Date(nowMs - windowS * 1000).toISOString()) as { points: number };
+      const rate = s.status === 'running' && r.points > 0 ? r.points / windowS : 0;
       return {
         id: s.id, name: s.name, status: s.status, created_at: s.createdAt, spec_hash: s.specHash, code_version: s.codeVersion,
         constants_edition: s.constantsEdition, points_total: s.nPoints, points_done: p.pointsDone, chunks_total: s.nChunks,

@@ -1,0 +1,124 @@
+/**
+ * Crash-safety trials on real physics: the real CLI (`node bin/darksieve.mjs run`) is killed with
+ * SIGKILL (or interrupted with SIGINT) after a chosen number of chunks, the scan is resumed, and the
+ * ledger must equal an uninterrupted run row for row and bit for bit.
+ *
+ * The test (cli.test.ts) runs a few trials; for more, run
+ *   node bin/run-ts.mjs tests/scan/kill-trials.ts [TRIALS] [SEED]
+ * which prints one line per trial and exits 1 on any mismatch.
+ */
+import Database from 'better-sqlite3';
+import { existsSync } from 'node:fs';
+import path from 'node:path';
+import { runScan, type RunSummary } from '../../scheduler/run.js';
+import { pointRows, runCli, tempDir, writeSpec, type CliResult } from './helpers.js';
+
+/** 2 x 15 x 20 = 600 points of real physics, no detectors or targets (fast), chunks of 20. */
+export const TRIAL_SPEC = {
+  name: 'trial',
+  model: { dm: 'dirac', g_chi: 0.8, g_q: 0.3 },
+  axes: {
+    mediator: { values: ['vector', 'scalar'] },
+    m_chi: { from: 5, to: 3000, steps: 15, spacing: 'log' },
+    m_med: { from: 10, to: 5000, steps: 20, spacing: 'log' },
+  },
+};
+export const TRIAL_CHUNK = 20;
+export const TRIAL_CHUNKS = 30;
+
+const quietLog = (): void => {};
+
+/** Rows of an uninterrupted run (in-process, 1 worker, another chunk size than the trials). */
+export async function referenceRows(specFile: string, dir: string): Promise<string[][]> {
+  const db = path.join(dir, 'reference.db');
+  await runScan({ specPath: specFile, dbPath: db, workers: 1, chunkSize: 45, quiet: true, log: quietLog });
+  return pointRows(db);
+}
+
+function doneChunks(dbFile: string): number {
+  if (!existsSync(dbFile)) return -1;
+  try {
+    const db = new Database(dbFile, { readonly: true, fileMustExist: true });
+    try {
+      return db.prepare(`SELECT COUNT(*) FROM chunks WHERE status = 'done'`).pluck().get() as number;
+    } finally {
+      db.close();
+    }
+  } catch {
+    return -1; // schema not created yet
+  }
+}
+
+export interface TrialResult {
+  readonly cli: CliResult;
+  /** done chunks seen when the signal was sent (null: the run finished first) */
+  readonly killedAfterChunks: number | null;
+  readonly resumed: RunSummary;
+  readonly rows: string[][];
+}
+
+/**
+ * Starts `darksieve run` on 2 workers, sends `signal` once at least `afterChunks` chunks are done
+ * (0: as soon as the scan exists), then resumes in-process with 2 workers.
+ */
+export async function killTrial(specFile: string, dbFile: string, afterChunks: number, signal: 'SIGKILL' | 'SIGINT'): Promise<TrialResult> {
+  let killedAfterChunks: number | null = null;
+  const cli = await runCli(['run', specFile, '--db', dbFile, '--workers', '2', '--chunk', String(TRIAL_CHUNK)], {
+    timeoutMs: 120_000,
+    onStart: (child) => {
+      const poll = setInterval(() => {
+        if (child.exitCode !== null || child.signalCode !== null) return clearInterval(poll);
+        const done = doneChunks(dbFile);
+        if (done >= afterChunks) {
+          clearInterval(poll);
+          killedAfterChunks = done;
+          child.kill(signal);
+        }
+      }, 20);
+      child.on('close', () => clearInterval(poll));
+    },
+  });
+  const resumed = await runScan({ specPath: specFile, dbPath: dbFile, workers: 2, quiet: true, log: quietLog });
+  return { cli, killedAfterChunks, resumed, rows: pointRows(dbFile) };
+}
+
+/** Deterministic choice of kill moments (xorshift32). */
+export function killMoments(n: number, seed: number): number[] {
+  let x = seed >>> 0 || 1;
+  return Array.from({ length: n }, () => {
+    x ^= x << 13;
+    x >>>= 0;
+    x ^= x >>> 17;
+    x ^= x << 5;
+    x >>>= 0;
+    return x % (TRIAL_CHUNKS - 2);
+  });
+}
+
+async function main(): Promise<void> {
+  const trials = Number(process.argv[2] ?? 10);
+  const seed = Number(process.argv[3] ?? 12345);
+  const tmp = tempDir();
+  let failures = 0;
+  try {
+    const specFile = writeSpec(tmp.dir, 'trial.json', TRIAL_SPEC);
+    const reference = await referenceRows(specFile, tmp.dir);
+    for (const [i, k] of killMoments(trials, seed).entries()) {
+      const signal = i % 4 === 3 ? 'SIGINT' : 'SIGKILL';
+      const r = await killTrial(specFile, path.join(tmp.dir, `trial-${i}.db`), k, signal);
+      const same = JSON.stringify(r.rows) === JSON.stringify(reference);
+      if (!same) failures++;
+      process.stdout.write(
+        `trial ${i}: ${signal} after ${r.killedAfterChunks ?? 'completion'} chunks (target ${k}), exit ${r.cli.code ?? r.cli.signal}, ` +
+          `resumed ${r.resumed.pointsThisRun} points: ${same ? 'identical' : 'MISMATCH'}\n`,
+      );
+    }
+  } finally {
+    tmp.cleanup();
+  }
+  process.stdout.write(`${trials - failures}/${trials} trials identical to the uninterrupted run\n`);
+  process.exitCode = failures > 0 ? 1 : 0;
+}
+
+// run as a script (node bin/run-ts.mjs tests/scan/kill-trials.ts); vitest imports it for the functions
+if (!process.env.VITEST) await main();

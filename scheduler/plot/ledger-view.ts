@@ -1,11 +1,12 @@
 /**
  * A read-only view of a scan ledger for pictures and reports, in the ledger contract shape
- * (scans, points, verdicts; see the project design). Opened with `{ readonly: true }` so that a
- * plot taken while a scan runs never blocks or alters the writer. Name checks return Issues, so a
- * wrong column or constraint set is reported with what exists.
+ * (scans, points, verdicts; see the project design), on the ledger module's read-only connection
+ * so that a plot taken while a scan runs never blocks or alters the writer. Name checks return
+ * Issues, so a wrong column or constraint set is reported with what exists.
  */
 import fs from 'node:fs';
-import Database from 'better-sqlite3';
+import type Database from 'better-sqlite3';
+import { LedgerReader } from '../ledger.js';
 import { InvalidInputError, type Issue } from '../../physics/issue.js';
 import { listSets } from '../constraints/judge.js';
 
@@ -28,34 +29,38 @@ const VERDICT_KEYS = new Set(['scan_id', 'constraint_set', 'point_id', 'survives
 
 export class LedgerView {
   readonly db: Database.Database;
-  private closed = false;
+  private readonly reader: LedgerReader;
 
-  private constructor(db: Database.Database) {
-    this.db = db;
+  private constructor(reader: LedgerReader) {
+    this.reader = reader;
+    this.db = reader.connection;
   }
 
-  /** Opens a ledger file read-only; a missing or non-ledger file is bad input naming `path`. */
+  /**
+   * Opens a ledger read-only through the ledger module's reader (WAL snapshot, busy timeout, so a
+   * picture can be taken while a scan runs); a missing or non-ledger file is bad input naming `path`.
+   */
   static open(file: string, path = 'DB'): LedgerView {
     if (!fs.existsSync(file)) {
       throw new InvalidInputError([{ code: 'missing_file', path, message: `ledger file not found: ${file}`, seen: file }]);
     }
-    let db: Database.Database;
+    let reader: LedgerReader | undefined;
     try {
-      db = new Database(file, { readonly: true, fileMustExist: true });
-      db.prepare('SELECT 1 FROM scans LIMIT 1').get();
+      reader = LedgerReader.openReadonly(file);
+      reader.connection.prepare('SELECT 1 FROM scans LIMIT 1').get();
     } catch (err) {
+      reader?.close();
       throw new InvalidInputError([{
         code: 'not_a_ledger', path, seen: file,
         message: `not a darksieve ledger (no readable scans table): ${(err as Error).message}`,
       }]);
     }
-    return new LedgerView(db);
+    return new LedgerView(reader);
   }
 
+  /** Closes the connection; a second call does nothing. */
   close(): void {
-    if (this.closed) return;
-    this.closed = true;
-    this.db.close();
+    this.reader.close();
   }
 
   scans(): ScanRow[] {

@@ -277,6 +277,27 @@ describe('large ledgers', () => {
   });
 });
 
+describe('a ledger being written', () => {
+  it('plots the committed points while a writer holds an open transaction', () => {
+    const file = path.join(dir, 'live.db');
+    const setup = createContractLedger(file);
+    insertPoints(setup, grid.slice(0, 300));
+    setup.close();
+    const writer = new Database(file);
+    writer.pragma('journal_mode = WAL');
+    writer.exec('BEGIN IMMEDIATE');
+    writer.prepare('INSERT INTO points (scan_id, point_id, m_chi, m_med) VALUES (1, 100000, 50, 50)').run();
+    try {
+      const out = path.join(dir, 'live.svg');
+      const result = writePlot({ db: file, out, x: 'm_chi', y: 'sigma_si_p_cm2' });
+      expect(result.drawnPoints).toBe(300);
+    } finally {
+      writer.exec('ROLLBACK');
+      writer.close();
+    }
+  });
+});
+
 describe('PNG output', () => {
   it('renders at two pixels per SVG unit', () => {
     const out = path.join(dir, 'grid.png');

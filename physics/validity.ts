@@ -9,6 +9,9 @@
  * - broad_mediator: Gamma/M > 0.3. A fixed-width Breit-Wigner and the narrow-width picture are no
  *   longer adequate (shared physics notes indirect.md A5; LHC DM working group practice, Abdallah et
  *   al. 2015, Phys. Dark Univ. 9-10, 8, from memory).
+ * - axial_unitarity: an axial-vector mediator coupled to a massive fermion violates perturbative
+ *   unitarity unless m_chi < sqrt(pi/2) m_med / g_chi (Kahlhoefer, Schmidt-Hoberg, Schwetz & Vogl 2016,
+ *   JHEP 02, 016, from memory); the longitudinal mode makes chi chibar -> A A grow as 1/m_med^4.
  * - hadronic_threshold: m_chi below 5 GeV with quark channels open. Annihilation into free quarks is
  *   then an approximation to exclusive hadronic final states (sqrt(s) ~ 2 m_chi below ~10 GeV, the
  *   region of hadronic resonances); relic and photon yields there carry O(1) uncertainty
@@ -27,6 +30,9 @@ export function validityFlags(point: ModelPoint, widthMedGeV: number): string[] 
   const flags: string[] = [];
   if (Math.max(point.g_chi, point.g_q, point.g_l) > PERTURBATIVE_COUPLING_MAX) flags.push('nonperturbative');
   if (widthMedGeV / point.m_med > BROAD_WIDTH_RATIO) flags.push('broad_mediator');
+  if (point.mediator === 'axial' && point.m_chi > Math.sqrt(Math.PI / 2) * (point.m_med / point.g_chi)) {
+    flags.push('axial_unitarity');
+  }
   if (point.m_chi < HADRONIC_THRESHOLD_GEV && point.g_q > 0) flags.push('hadronic_threshold');
   return flags;
 }

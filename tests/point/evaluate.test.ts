@@ -65,6 +65,9 @@ describe('evaluate: properties', () => {
     expect(evaluate(at({ m_chi: 2, m_med: 100 }), prepared).flags).toContain('hadronic_threshold');
     expect(evaluate(at({ m_chi: 100, m_med: 1000, width_med: 400 }), prepared).flags).toContain('broad_mediator');
     expect(evaluate(at({ m_chi: 100, m_med: 1000 }), prepared).flags).toBe('');
+    // sqrt(pi/2) m_med / g_chi = 125.3 GeV for m_med = 100, g_chi = 1 (Kahlhoefer et al. 2016, JHEP 02, 016, from memory)
+    expect(evaluate(at({ mediator: 'axial', m_chi: 130, m_med: 100 }), prepared).flags).toContain('axial_unitarity');
+    expect(evaluate(at({ mediator: 'axial', m_chi: 120, m_med: 100 }), prepared).flags).not.toContain('axial_unitarity');
   });
 
   it('a given width_med replaces the minimal width', () => {

@@ -17,6 +17,7 @@ import { nucleonCouplings } from '../../physics/direct/nucleon.js';
 import { responseKernel } from '../../physics/direct/rate.js';
 import { DM_KINDS, MEDIATOR_KINDS, type ModelPoint } from '../../physics/model.js';
 import { DEFAULT_HADRONIC, DEFAULT_HALO, type ScanPhysicsSetup } from '../../physics/setup.js';
+import { mulberry32 } from './random.js';
 
 // invented demo detectors (fictional experiments)
 const SETUP: ScanPhysicsSetup = {
@@ -40,17 +41,6 @@ function gridPoints(): ModelPoint[] {
   return out;
 }
 
-/** Deterministic pseudo-random numbers in [0, 1) (mulberry32, common practice, no source). */
-function mulberry32(seed: number): () => number {
-  let a = seed >>> 0;
-  return () => {
-    a = (a + 0x6d2b79f5) >>> 0;
-    let t = a;
-    t = Math.imul(t ^ (t >>> 15), t | 1);
-    t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
-    return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
-  };
-}
 
 function randomPoints(n: number): ModelPoint[] {
   const rnd = mulberry32(20240611);

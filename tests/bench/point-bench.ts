@@ -8,6 +8,7 @@ import path from 'node:path';
 import { prepare, evaluate } from '../../physics/evaluate.js';
 import { parsePoint, MEDIATOR_KINDS, DM_KINDS, type ModelPoint } from '../../physics/model.js';
 import { loadSpecSetup } from '../../scheduler/spec.js';
+import { mulberry32 } from './random.js';
 
 function point(raw: Record<string, unknown>): ModelPoint {
   const { point: p, issues } = parsePoint(raw);
@@ -15,17 +16,6 @@ function point(raw: Record<string, unknown>): ModelPoint {
   return p;
 }
 
-/** Deterministic uniform numbers in [0,1) (mulberry32; common practice, no source). */
-function rng(seed: number): () => number {
-  let a = seed >>> 0;
-  return () => {
-    a = (a + 0x6d2b79f5) >>> 0;
-    let t = a;
-    t = Math.imul(t ^ (t >>> 15), t | 1);
-    t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
-    return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
-  };
-}
 
 function rate(points: readonly ModelPoint[], setupPrepared: ReturnType<typeof prepare>): number {
   const t0 = performance.now();
@@ -48,7 +38,7 @@ export async function benchPoint(): Promise<{ lines: string[] }> {
       }
     }
   }
-  const u = rng(7);
+  const u = mulberry32(7);
   const random: ModelPoint[] = [];
   for (let k = 0; k < 600; k++) {
     random.push(point({

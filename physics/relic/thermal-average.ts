@@ -38,7 +38,10 @@
  *    unit of a master variable per piece; a well-mapped piece converges on its first G7-K15 pass.
  *    The range above tMax is dropped (its weight is < e^{-tMax} times polynomial growth).
  *  - Table: <sigma v> is computed once per model point on nodes uniform in ln x between xMin and
- *    xMax and interpolated by a cubic spline of ln<sigma v> against ln x (not-a-knot ends). Beyond
+ *    xMax and interpolated by a cubic spline of ln<sigma v> against ln x (not-a-knot ends). The
+ *    table's nodes use the Laguerre rule where the integrand is smooth and otherwise the per-point
+ *    sigma(E) grid of physics/relic/energy-grid.ts (sigma sampled once, reused at every x; the
+ *    adaptive pieces above are the direct path, used below xMin and as the test reference). Beyond
  *    xMax the value is held constant (relic.md §2.4: the v -> 0 limit; the late contribution is
  *    ~x_f/x of the depletion); below xMin the integral is evaluated directly.
  *
@@ -50,7 +53,8 @@
  */
 import type { Annihilation } from '../annihilation-model.js';
 import { besselK1Scaled, besselK2Scaled } from '../numerics/bessel.js';
-import { gaussLaguerre, integrate } from '../numerics/quadrature.js';
+import { gaussLaguerre, integrate, type GaussRule } from '../numerics/quadrature.js';
+import { buildEnergyGrid, gridThermalAverage, poleInDelta, type EnergyGrid } from './energy-grid.js';
 
 /** Numerical knobs of the thermal average (declared with docs in physics/relic/relic.ts). */
 export interface ThermalAverageKnobs {
@@ -62,6 +66,8 @@ export interface ThermalAverageKnobs {
   readonly relTol: number;
   /** half-width of the tan-mapped core around a pole, in units of its half-width w in t */
   readonly poleCoreWidths: number;
+  /** Gauss-Legendre nodes per piece of the per-point sigma(E) grid (table path near poles and thresholds) */
+  readonly gridNodes: number;
 }
 
 /** thermal scale of the integrand in t (the e^{-t} factor) */
@@ -136,7 +142,11 @@ export function thermalAverage(ann: Annihilation, x: number, knobs: ThermalAvera
 
 /** Smooth case: sum_i w_i F(t_i) / (t_i^{1/2} e^{-t_i}) with the alpha = 1/2 Laguerre rule. */
 function laguerreSum(ann: Annihilation, x: number, n: number): number {
-  const rule = gaussLaguerre(n, 0.5);
+  return laguerreRuleSum(ann, x, gaussLaguerre(n, 0.5));
+}
+
+function laguerreRuleSum(ann: Annihilation, x: number, rule: GaussRule): number {
+  const n = rule.nodes.length;
   const m = ann.mChiGeV;
   const invX = 1 / x;
   let sum = 0;
@@ -305,7 +315,8 @@ export function tabulateThermalAverage(
   if (!(nodes >= 4) || !(xMax > xMin) || !(xMin > 0)) {
     throw new RangeError(`tabulateThermalAverage: need nodes >= 4 and 0 < xMin < xMax, got nodes=${nodes}, xMin=${xMin}, xMax=${xMax}`);
   }
-  const lnValue = (u: number): number => Math.log(Math.max(thermalAverage(ann, Math.exp(u), knobs), LOG_FLOOR));
+  const average = tableAverager(ann, xMin, xMax, knobs);
+  const lnValue = (u: number): number => Math.log(Math.max(average(Math.exp(u)), LOG_FLOOR));
   const u0 = Math.log(xMin);
   const uEnd = Math.log(xMax);
   const du = (uEnd - u0) / (nodes - 1);
@@ -318,6 +329,51 @@ export function tabulateThermalAverage(
   }
   if (refine) refineTable(us, ys, lnValue, refine);
   return splineTable(ann, knobs, xMin, xMax, us, ys, lnValue);
+}
+
+/**
+ * <sigma v>(x) for x in [xMin, xMax], the table's evaluator: the Laguerre rule where the integrand
+ * is smooth at this x (same test as the direct path: no threshold within tMax, no pole within
+ * 2 tMax in t; a listed sub-threshold pole must lie beyond 2 tMax too), otherwise the per-point
+ * sigma(E) grid (physics/relic/energy-grid.ts), built on first need and reused for every later x.
+ */
+function tableAverager(ann: Annihilation, xMin: number, xMax: number, knobs: ThermalAverageKnobs): (x: number) => number {
+  const m = ann.mChiGeV;
+  const rule = gaussLaguerre(knobs.laguerreNodes, 0.5);
+  const tMax = knobs.tMax;
+  // singular points in delta = sqrt(s) - 2m: thresholds (reach tMax), poles (reach 2 tMax, and only
+  // while their half-width in t is below tMax, as in piecesOf)
+  const thresholds = Float64Array.from(ann.thresholdsGeV.map((e) => e - 2 * m).filter((d) => d > 0));
+  const poleRe: number[] = [];
+  const poleIm: number[] = [];
+  const pole = new Float64Array(2);
+  for (const p of ann.poles) {
+    if (!(p.massGeV > 2 * m) || !(p.widthGeV > 0)) continue;
+    poleInDelta(m, p.massGeV, p.widthGeV, pole);
+    poleRe.push(pole[0]!);
+    poleIm.push(pole[1]!);
+  }
+  for (const p of ann.subthresholdPoles ?? []) {
+    if (!(p.massGeV > 0) || !(p.widthGeV >= 0)) continue;
+    poleInDelta(m, p.massGeV, p.widthGeV, pole);
+    // distance of the singularity from the threshold edge, as a pole at that delta
+    poleRe.push(Math.hypot(pole[0]!, pole[1]!));
+    poleIm.push(0);
+  }
+  // the grid serves x only below the last x at which some singular point is within reach
+  let xGrid = xMin;
+  for (const d of thresholds) xGrid = Math.max(xGrid, (tMax * m) / d);
+  for (let i = 0; i < poleRe.length; i++) xGrid = Math.max(xGrid, Math.min((2 * tMax * m) / poleRe[i]!, (tMax * m) / poleIm[i]!));
+  let grid: EnergyGrid | null = null;
+  return (x: number): number => {
+    const r = x / m;
+    let smooth = true;
+    for (let i = 0; i < thresholds.length && smooth; i++) if (thresholds[i]! * r < tMax) smooth = false;
+    for (let i = 0; i < poleRe.length && smooth; i++) if (poleRe[i]! * r < 2 * tMax && poleIm[i]! * r < tMax) smooth = false;
+    if (smooth) return (4 / besselK2Scaled(x) ** 2) * laguerreRuleSum(ann, x, rule);
+    grid ??= buildEnergyGrid(ann, xMin, Math.min(xMax, xGrid), tMax, knobs.gridNodes);
+    return gridThermalAverage(grid, x, tMax);
+  };
 }
 
 /** The spline table through (us, ys); `lnValue` evaluates ln<sigma v> at further nodes. */

@@ -4,7 +4,7 @@
  * scipy.special.kve (cross-check of the fixture itself).
  */
 import { describe, expect, it } from 'vitest';
-import { besselK0Scaled, besselK1Scaled, besselK2Scaled } from '../../physics/numerics/bessel.js';
+import { besselK0Scaled, besselK1Scaled, besselK2Scaled, LARGE_Z_MIN, sqrtZK1ScaledOfInverse } from '../../physics/numerics/bessel.js';
 import fixture from '../fixtures/relic/bessel_kve.json' with { type: 'json' };
 
 interface Row { z: number; k0: number; k1: number; k2: number; scipy_k0: number; scipy_k1: number; scipy_k2: number }
@@ -65,5 +65,19 @@ describe('scaled Bessel K (mpmath besselk x e^z, 40 digits; scipy kve cross-chec
       expect(f(NaN)).toBeNaN();
       expect(f(Infinity)).toBe(0);
     }
+  });
+
+  it(`large-argument form sqrt(z) K~_1(z) in u = 1/z (z >= ${LARGE_Z_MIN}) vs mpmath besselk (fixture rows)`, () => {
+    // 15 Chebyshev terms on u in [0, 1/6]; the coefficients come from besselK1Scaled (2e-14 above),
+    // so the same 2e-14 tolerance applies
+    const bad: string[] = [];
+    for (const r of rows) {
+      if (r.z < LARGE_Z_MIN) continue;
+      const got = sqrtZK1ScaledOfInverse(1 / r.z) / Math.sqrt(r.z);
+      const err = relErr(got, r.k1);
+      if (!(err <= 2e-14)) bad.push(`z=${r.z} got=${got} expected=${r.k1} rel.diff=${err.toExponential(2)} tol=2e-14`);
+    }
+    expect(bad, bad.join('\n')).toEqual([]);
+    expect(rows.filter((r) => r.z >= LARGE_Z_MIN).length).toBeGreaterThan(50);
   });
 });

@@ -7,11 +7,13 @@
  * (relic.md §2.1).
  */
 import { describe, expect, it } from 'vitest';
+import { buildEnergyGrid, gridThermalAverage } from '../../physics/relic/energy-grid.js';
 import { tabulateThermalAverage, thermalAverage, type ThermalAverageKnobs } from '../../physics/relic/thermal-average.js';
+import { DEFAULT_RELIC_KNOBS } from '../../physics/relic/relic.js';
 import fixture from '../fixtures/relic/thermal_average.json' with { type: 'json' };
 import { betaOf, pwave, resonance, swave, toyAnnihilation } from './toy-annihilation.js';
 
-const KNOBS: ThermalAverageKnobs = { laguerreNodes: 24, tMax: 100, relTol: 1e-10, poleCoreWidths: 2 };
+const KNOBS: ThermalAverageKnobs = { laguerreNodes: 24, tMax: 100, relTol: 1e-10, poleCoreWidths: 2, gridNodes: 16 };
 const rel = (got: number, exp: number): number => Math.abs(got - exp) / Math.abs(exp);
 
 describe('constant sigma v_lab is returned exactly at every x (relic.md §2.1, [computed] there)', () => {
@@ -89,6 +91,50 @@ describe('vs scipy quad of eq. (2.1) (thermal_average.json)', () => {
       expect(bad, bad.join('\n')).toEqual([]);
     });
   }
+});
+
+describe('per-point sigma(E) grid (physics/relic/energy-grid.ts) vs scipy quad of eq. (2.1) (thermal_average.json)', () => {
+  // The table path near poles and thresholds. Default gridNodes (5 per piece): the graded pieces
+  // converge geometrically, measured ~1e-7 on these cases; tolerance 1e-6 keeps a margin and is
+  // still 3000x below the table tolerance (tableRelTol 3e-3). Grid built for x in [3, 1e4] as in
+  // relicAbundance, so x = 1 is not tested here (the direct path serves x < tableXMin).
+  const nodes = DEFAULT_RELIC_KNOBS.gridNodes;
+  const m = 100;
+  const M2 = 250;
+  const G2 = 250e-5;
+  const bw2 = (s: number): number => (M2 * M2 * G2 * G2) / ((s - M2 * M2) ** 2 + M2 * M2 * G2 * G2);
+  const bf = (s: number, mf: number): number => Math.sqrt(Math.max(0, 1 - (4 * mf * mf) / s));
+  const builders: Record<string, () => ReturnType<typeof toyAnnihilation>> = {
+    swave_cm: () => swave(m, 1e-9),
+    pwave_rel: () => pwave(m, 1e-9),
+    resonance_210_1: () => resonance(m, 6.77044e-8, 210, 1),
+    'narrow_250_1e-5': () => toyAnnihilation({ mChiGeV: m, poles: [{ massGeV: M2, widthGeV: G2 }], sigma: (s) => (1e-9 / (2 * betaOf(m, s))) * (1 + 1e3 * bw2(s)) }),
+    threshold_closed_105: () => toyAnnihilation({ mChiGeV: m, thresholdsGeV: [210], sigma: (s) => 1e-10 / (2 * betaOf(m, s)) + (1e-8 * bf(s, 105)) / (2 * betaOf(m, s)) }),
+    threshold_pwave_open_95: () => toyAnnihilation({ mChiGeV: m, sigma: (s) => (1e-9 * bf(s, 95) ** 3) / (2 * betaOf(m, s)) }),
+  };
+  for (const c of (fixture as { cases: { name: string; x: number[]; sigmaV_GeV2: number[] }[] }).cases) {
+    it(`${c.name}, x >= 3, ${nodes} nodes per piece: within 1e-6`, () => {
+      const grid = buildEnergyGrid(builders[c.name]!(), 3, 1e4, DEFAULT_RELIC_KNOBS.tMax, nodes);
+      const bad: string[] = [];
+      c.x.forEach((x, i) => {
+        if (x < 3) return;
+        const expected = c.sigmaV_GeV2[i]!;
+        const got = gridThermalAverage(grid, x, DEFAULT_RELIC_KNOBS.tMax);
+        if (!(rel(got, expected) < 1e-6)) bad.push(`x=${x} got ${got} expected ${expected} rel ${rel(got, expected).toExponential(2)} tol 1e-6`);
+      });
+      expect(bad, bad.join('\n')).toEqual([]);
+    });
+  }
+  it('samples sigma once: grid size is independent of how many x are evaluated, and far below the adaptive path', () => {
+    let calls = 0;
+    const base = resonance(m, 6.77044e-8, 210, 1);
+    const counted = { ...base, sigmaTotalGeV2: (s: number) => { calls++; return base.sigmaTotalGeV2(s); } };
+    const grid = buildEnergyGrid(counted, 3, 1e4, 60, nodes);
+    const afterBuild = calls;
+    for (const x of [3, 10, 20, 30, 100]) gridThermalAverage(grid, x, 60);
+    expect(calls).toBe(afterBuild);
+    expect(afterBuild).toBe(grid.delta.length);
+  });
 });
 
 describe('relic.md §6.3 resonance toy, <sigma v> in cm^3/s at printed x (4 digits, [computed] there)', () => {

@@ -28,10 +28,15 @@ export interface ColumnStats {
   readonly nonPositive: number;
 }
 
+/**
+ * Log when no value is negative and the positive values span LOG_AXIS_MIN_DECADES or more. Exact
+ * zeros do not prevent a log axis (an axial mediator's sigma_SI is 0 by symmetry, and the other
+ * points still span decades): they are left out of the picture and counted in its notes.
+ */
 export function chooseScale(stats: ColumnStats, choice: ScaleChoice): ScaleType {
   if (choice !== 'auto') return choice;
-  if (stats.min === null || stats.max === null || stats.min <= 0) return 'linear';
-  return Math.log10(stats.max / stats.min) >= LOG_AXIS_MIN_DECADES ? 'log' : 'linear';
+  if (stats.min === null || stats.max === null || stats.minPositive === null || stats.min < 0) return 'linear';
+  return Math.log10(stats.max / stats.minPositive) >= LOG_AXIS_MIN_DECADES ? 'log' : 'linear';
 }
 
 /** A padded domain [lo, hi] in data units, or null when no value can be drawn on this scale. */

@@ -18,7 +18,7 @@ import { betaOf, pwave, resonance, toyAnnihilation } from '../relic/toy-annihila
 
 /** tight knobs: the reference for the accuracy figure */
 const TIGHT: Partial<RelicKnobs> = {
-  laguerreNodes: 48, tMax: 100, quadRelTol: 1e-11, gridNodes: 16, tableNodesPerDecade: 60, tableRelTol: 1e-9, tableXMin: 2, stepX: 0.01, equilibriumCut: 1e-7, tailRelTol: 1e-10,
+  laguerreNodes: 48, tMax: 100, quadRelTol: 1e-11, gridNodes: 16, tableNodesPerDecade: 60, tableRelTol: 1e-9, tableXMin: 2, stepX: 0.01, equilibriumCut: 1e-7, tailPanelWidth: 0.02,
 };
 
 interface BenchPoint {

@@ -78,7 +78,7 @@ export function limitCurveOverlays(
   for (const c of curveConstraints(db, scanId, set, specJson).list) {
     if (c.versus !== x || c.observable !== y) continue;
     if (c.table) {
-      overlays.push({ label: c.label, lines: [c.table.x.map((xv, i) => ({ x: xv, y: c.table?.y[i] as number }))], dashed: false });
+      overlays.push({ label: c.label, lines: [c.table.x.map((xv, i) => ({ x: xv, y: c.table?.y[i] as number }))], dash: null });
       continue;
     }
     if (!c.file) continue;
@@ -94,7 +94,7 @@ export function limitCurveOverlays(
       continue;
     }
     const curve = parsed.curve;
-    overlays.push({ label: c.label, lines: [curve.x.map((xv, i) => ({ x: xv, y: curve.y[i] as number }))], dashed: false });
+    overlays.push({ label: c.label, lines: [curve.x.map((xv, i) => ({ x: xv, y: curve.y[i] as number }))], dash: null });
   }
   return { overlays, notes };
 }

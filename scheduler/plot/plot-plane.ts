@@ -91,7 +91,7 @@ export function planeImage(view: LedgerView, ledgerFile: string, opts: PlaneOpti
   const overlays: Overlay[] = [];
   const extraNotes: string[] = [];
   const relic = relicContour(view, scanId, data);
-  if (relic.overlay) overlays.push(relic.overlay);
+  overlays.push(...relic.overlays);
   if (relic.note) extraNotes.push(relic.note);
   const limits = limitCurveOverlays(view.db, scanId, constraintSet, scan.spec_json, opts.x, opts.y, ledgerFile);
   overlays.push(...limits.overlays);

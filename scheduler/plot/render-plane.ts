@@ -17,7 +17,10 @@ export const FONT_FAMILY = 'DejaVu Sans';
 export const DEFAULT_WIDTH = 720;
 export const DEFAULT_HEIGHT = 540;
 /** Height of the header band above the plot (title, keys, colour bar). */
-const HEADER_PX = 90;
+const HEADER_PX = 96;
+/** Baseline of the key row (status key, curve keys) and the height of each further key row. */
+const KEY_ROW_Y = 84;
+const KEY_ROW_PX = 16;
 const MARGIN = { left: 84, right: 22, top: 10, bottom: 44 } as const;
 const EXCLUDED_OPACITY = 0.35;
 const FADED_CELL_OPACITY = 0.28;
@@ -27,7 +30,10 @@ const NO_VALUE_GREY = '#9a9a9a';
 export interface Overlay {
   readonly label: string;
   readonly lines: readonly (readonly { x: number; y: number }[])[];
-  readonly dashed: boolean;
+  /** short text written beside the line in the plot (default: the label) */
+  readonly tag?: string;
+  /** SVG stroke-dasharray, or null for a solid line (limit curves solid, relic lines dashed) */
+  readonly dash: string | null;
 }
 
 export interface RenderOptions {
@@ -131,6 +137,12 @@ function dataMarks(data: PlaneData): Plot.Markish[] {
   return marks;
 }
 
+/** Where a value sits across an axis domain, 0 at the start and 1 at the end (in scale space). */
+function scaleFraction(axis: AxisInfo, v: number): number {
+  const [a, b] = axis.domain;
+  return axis.type === 'log' ? Math.log(v / a) / Math.log(b / a) : (v - a) / (b - a);
+}
+
 /** Points between a line's vertices (straight in the axes' scale space), for placing its label. */
 function densify(line: readonly { x: number; y: number }[], x: AxisInfo, y: AxisInfo, perSegment = 16): { x: number; y: number }[] {
   const lerp = (type: AxisInfo['type'], a: number, b: number, t: number): number =>
@@ -152,7 +164,7 @@ function overlayMarks(overlays: readonly Overlay[], x: AxisInfo, y: AxisInfo): P
   overlays.forEach((o, k) => {
     const rows = o.lines.flatMap((line, li) => line.map((p) => ({ ...p, z: `${k}:${li}` })));
     if (rows.length === 0) return;
-    const dash = o.dashed ? '6,3' : undefined;
+    const dash = o.dash ?? undefined;
     marks.push(Plot.line(rows, { x: 'x', y: 'y', z: 'z', stroke: 'white', strokeWidth: 4, strokeOpacity: 0.85, clip: true }));
     marks.push(Plot.line(rows, {
       x: 'x', y: 'y', z: 'z', stroke: 'black', strokeWidth: 1.6, strokeDasharray: dash, clip: true, ariaDescription: `curve ${o.label}`,
@@ -160,10 +172,17 @@ function overlayMarks(overlays: readonly Overlay[], x: AxisInfo, y: AxisInfo): P
     // label at the visible point farthest along the longest line, nudged inward
     const longest = [...o.lines].sort((a, b) => b.length - a.length)[0] ?? [];
     const visible = densify(longest, x, y).filter(inside);
-    const anchor = visible[Math.floor(visible.length * (0.35 + 0.2 * (k % 3)))];
+    // prefer points away from the frame so the text is not cut at the edge
+    const central = visible.filter((p) => {
+      const fx = scaleFraction(x, p.x);
+      const fy = scaleFraction(y, p.y);
+      return fx > 0.15 && fx < 0.85 && fy > 0.06 && fy < 0.92;
+    });
+    const pool = central.length > 0 ? central : visible;
+    const anchor = pool[Math.floor(pool.length * (0.35 + 0.2 * (k % 3)))];
     if (anchor) {
       marks.push(Plot.text([anchor], {
-        x: 'x', y: 'y', text: () => o.label, dy: -9, fontSize: 11, fill: 'black', stroke: 'white', strokeWidth: 3,
+        x: 'x', y: 'y', text: () => o.tag ?? o.label, dy: -9, fontSize: 11, fill: 'black', stroke: 'white', strokeWidth: 3,
         paintOrder: 'stroke', ariaDescription: `curve label ${o.label}`,
       }));
     }
@@ -248,7 +267,6 @@ function statusKey(data: PlaneData, x0: number, y0: number): string {
 export function renderPlane(data: PlaneData, options: RenderOptions): string {
   const width = options.width ?? DEFAULT_WIDTH;
   const height = options.height ?? DEFAULT_HEIGHT;
-  const plotHeight = height - HEADER_PX;
   const parts: string[] = [];
   parts.push(`<rect width="${width}" height="${height}" fill="white"/>`);
   const titleRoom = Math.floor((width - 24) / 8.6) - labelText(data.x.column).length - labelText(data.y.column).length - 6;
@@ -260,13 +278,21 @@ export function renderPlane(data: PlaneData, options: RenderOptions): string {
     const shown = n.length > room ? `${n.slice(0, room - 1)}…` : n;
     parts.push(`<text x="12" y="${38 + i * 14}" font-size="10.5" fill="#333">${escapeXml(shown)}</text>`);
   });
-  parts.push(`<g aria-label="status key">${statusKey(data, 14, 78)}</g>`);
+  parts.push(`<g aria-label="status key">${statusKey(data, 14, KEY_ROW_Y)}</g>`);
   let keyX = 250;
+  let keyY = KEY_ROW_Y;
   for (const o of options.overlays) {
     if (o.lines.length === 0) continue;
-    parts.push(`<g aria-label="curve key"><line x1="${keyX}" y1="78" x2="${keyX + 22}" y2="78" stroke="black" stroke-width="1.6"${o.dashed ? ' stroke-dasharray="6,3"' : ''}/><text x="${keyX + 27}" y="82" font-size="11">${escapeXml(o.label)}</text></g>`);
-    keyX += 36 + o.label.length * 6.3;
+    const keyWidth = 36 + o.label.length * 6.3;
+    if (keyX + keyWidth > width - 12 && keyX > 14) {
+      keyX = 14;
+      keyY += KEY_ROW_PX;
+    }
+    parts.push(`<g aria-label="curve key"><line x1="${keyX}" y1="${keyY}" x2="${keyX + 22}" y2="${keyY}" stroke="black" stroke-width="1.6"${o.dash ? ` stroke-dasharray="${o.dash}"` : ''}/><text x="${keyX + 27}" y="${keyY + 4}" font-size="11">${escapeXml(o.label)}</text></g>`);
+    keyX += keyWidth;
   }
+  const header = HEADER_PX + (keyY - KEY_ROW_Y);
+  const plotHeight = height - header;
   const bx = width - 262;
   const bar = colorBarSvg(data, 250, bx, 42);
   if (bar) {
@@ -274,11 +300,11 @@ export function renderPlane(data: PlaneData, options: RenderOptions): string {
     parts.push(`<text x="${bx + 8}" y="38" font-size="11">${label}${bar.caption ? `<tspan font-size="9.5" fill="#444">  (${escapeXml(bar.caption)})</tspan>` : ''}</text>`);
     parts.push(bar.svg);
   }
-  parts.push(plotSvg(data, options, width, plotHeight, HEADER_PX));
+  parts.push(plotSvg(data, options, width, plotHeight, header));
   const plotLeft = MARGIN.left;
   const plotRight = width - MARGIN.right;
   parts.push(`<text aria-label="x label" x="${(plotLeft + plotRight) / 2}" y="${height - 6}" font-size="13" text-anchor="middle">${labelTspans(data.x.column, 13)}</text>`);
-  const yMid = HEADER_PX + (MARGIN.top + plotHeight - MARGIN.bottom) / 2;
+  const yMid = header + (MARGIN.top + plotHeight - MARGIN.bottom) / 2;
   parts.push(`<text aria-label="y label" transform="translate(20,${yMid}) rotate(-90)" font-size="13" text-anchor="middle">${labelTspans(data.y.column, 13)}</text>`);
   const desc = `${labelText(data.y.column)} versus ${labelText(data.x.column)}`;
   return `<svg xmlns="http://www.w3.org/2000/svg" width="${width}" height="${height}" viewBox="0 0 ${width} ${height}" font-family="${FONT_FAMILY}" role="img" aria-label="${escapeXml(desc)}">` +

@@ -132,8 +132,8 @@ describe('grid planes', () => {
     try {
       const image = planeImage(view, gridDb(), { x: 'm_chi', y: 'm_med' });
       const relic = relicContour(view, 1, image.data);
-      expect(relic.overlay).not.toBeNull();
-      const pts = relic.overlay?.lines.flat() ?? [];
+      expect(relic.overlays).toHaveLength(1);
+      const pts = relic.overlays[0]?.lines.flat() ?? [];
       expect(pts.length).toBeGreaterThan(20);
       for (const p of pts) {
         const expected = 300 * Math.sqrt(p.x / 100);
@@ -151,22 +151,47 @@ describe('grid planes', () => {
     try {
       const image = planeImage(view, scatterDb(), { x: 'm_chi', y: 'g_chi', set: 'default' });
       expect(image.data.mode).toBe('scatter');
-      expect(relicContour(view, 1, image.data)).toEqual({ overlay: null, note: null });
+      expect(relicContour(view, 1, image.data)).toEqual({ overlays: [], note: null });
     } finally {
       view.close();
     }
   });
 
-  it('leaves the relic line out of a projection (other axes vary) and says why', () => {
-    const file = path.join(dir, 'projection.db');
+  it('draws one relic line per slice when a few other parameter values share the cells', () => {
+    const file = path.join(dir, 'slices.db');
     const db = createContractLedger(file);
-    insertPoints(db, [0.5, 1].flatMap((g) => grid.map((r) => ({ ...r, g_chi: g }))));
+    // second slice: the synthetic field scaled by 16, so its line sits at m_med / 2
+    insertPoints(db, [0.5, 1].flatMap((g) => grid.map((r) => ({ ...r, g_chi: g, omega_h2: (r.omega_h2 as number) * (g === 1 ? 16 : 1) }))));
     db.close();
     const view = LedgerView.open(file);
     try {
       const image = planeImage(view, file, { x: 'm_chi', y: 'm_med', color: 'omega_h2' });
       expect(image.data).toMatchObject({ mode: 'grid', pointsPerCell: 2, judged: false });
-      expect(image.notes.join(' ')).toContain('relic line not drawn: 2 points share each cell');
+      const relic = relicContour(view, 1, image.data);
+      expect(relic.overlays.map((o) => o.label)).toEqual(['Ωh² = 0.120 (g_chi = 0.5)', 'Ωh² = 0.120 (g_chi = 1)']);
+      const factor = [1, 0.5];
+      relic.overlays.forEach((o, k) => {
+        for (const p of o.lines.flat()) {
+          const expected = factor[k]! * 300 * Math.sqrt(p.x / 100);
+          expect(Math.abs(p.y / expected - 1), `slice ${k}, m_chi=${p.x}: got ${p.y}, expected ${expected}`).toBeLessThan(1e-9);
+        }
+      });
+      expect(image.svg).toContain('Ωh² = 0.120 (g_chi = 1)');
+    } finally {
+      view.close();
+    }
+  });
+
+  it('leaves the relic line out when too many slices share the cells, and says why', () => {
+    const file = path.join(dir, 'projection.db');
+    const db = createContractLedger(file);
+    insertPoints(db, [0.2, 0.4, 0.6, 0.8, 1].flatMap((g) => grid.map((r) => ({ ...r, g_chi: g }))));
+    db.close();
+    const view = LedgerView.open(file);
+    try {
+      const image = planeImage(view, file, { x: 'm_chi', y: 'm_med', color: 'omega_h2' });
+      expect(image.data).toMatchObject({ mode: 'grid', pointsPerCell: 5 });
+      expect(image.notes.join(' ')).toContain('relic line not drawn: 5 points share each cell');
       expect(image.svg).not.toContain('curve Ωh²');
     } finally {
       view.close();

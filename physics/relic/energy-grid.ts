@@ -34,7 +34,7 @@
  * the relic test cases (tests/relic/thermal-average.test.ts, against scipy quad of eq. 2.1).
  */
 import type { Annihilation } from '../annihilation-model.js';
-import { besselK1Scaled, besselK2Scaled, LARGE_Z_MIN, sqrtZK1ScaledOfInverse } from '../numerics/bessel.js';
+import { ASYMPTOTIC_Z_MIN, besselK1Scaled, besselK2Scaled, LARGE_Z_MIN, sqrtZK1ScaledAsymptotic, sqrtZK1ScaledOfInverse } from '../numerics/bessel.js';
 import { gaussLegendre } from '../numerics/quadrature.js';
 
 /** width of the first piece at a square-root edge, in t = delta x at x = xHigh */
@@ -152,8 +152,9 @@ export function buildEnergyGrid(ann: Annihilation, xLow: number, xHigh: number, 
 
 /**
  * <sigma v>(x) in GeV^-2 from the sampled grid; pieces starting beyond t = tMax are dropped.
- * K~_1(E r) = sqrt(u) P(u) with u = 1/(E r) (physics/numerics/bessel.ts, z >= 6 i.e. x >= 3), the
- * sqrt(1/E) factor being stored in the weights.
+ * K~_1(E r) = sqrt(u) P(u) with u = 1/(E r): the truncated Hankel series for x >= 20 (z >= 40), the
+ * 15-term Chebyshev series for x >= 3 (physics/numerics/bessel.ts); the sqrt(1/E) factor is stored
+ * in the weights.
  */
 export function gridThermalAverage(grid: EnergyGrid, x: number, tMax: number): number {
   const m = grid.mChiGeV;
@@ -165,7 +166,8 @@ export function gridThermalAverage(grid: EnergyGrid, x: number, tMax: number): n
   const inverseE = grid.inverseE;
   const left = grid.pieceLeft;
   const start = grid.pieceStart;
-  const large = 2 * x >= LARGE_Z_MIN;
+  // every node has z = E r >= 2x: pick the cheapest form of sqrt(z) K~_1(z) valid there
+  const form = 2 * x >= ASYMPTOTIC_Z_MIN ? 2 : 2 * x >= LARGE_Z_MIN ? 1 : 0;
   let sum = 0;
   for (let p = 0; p < left.length && left[p]! < cut; p++) {
     const end = start[p + 1]!;
@@ -174,7 +176,7 @@ export function gridThermalAverage(grid: EnergyGrid, x: number, tMax: number): n
       if (w === 0) continue;
       const u = inverseE[i]! * invR;
       // sqrt(z) K~_1(z) at z = E r; the sqrt(1/E) is in w and sqrt(1/r) is applied below
-      const k1 = large ? sqrtZK1ScaledOfInverse(u) : besselK1Scaled(1 / u) / Math.sqrt(u);
+      const k1 = form === 2 ? sqrtZK1ScaledAsymptotic(u) : form === 1 ? sqrtZK1ScaledOfInverse(u) : besselK1Scaled(1 / u) / Math.sqrt(u);
       sum += w * k1 * Math.exp(-delta[i]! * r);
     }
   }

@@ -4,7 +4,7 @@
  * scipy.special.kve (cross-check of the fixture itself).
  */
 import { describe, expect, it } from 'vitest';
-import { besselK0Scaled, besselK1Scaled, besselK2Scaled, LARGE_Z_MIN, sqrtZK1ScaledOfInverse } from '../../physics/numerics/bessel.js';
+import { ASYMPTOTIC_Z_MIN, besselK0Scaled, besselK1Scaled, besselK2Scaled, LARGE_Z_MIN, sqrtZK1ScaledAsymptotic, sqrtZK1ScaledOfInverse } from '../../physics/numerics/bessel.js';
 import fixture from '../fixtures/relic/bessel_kve.json' with { type: 'json' };
 
 interface Row { z: number; k0: number; k1: number; k2: number; scipy_k0: number; scipy_k1: number; scipy_k2: number }
@@ -79,5 +79,18 @@ describe('scaled Bessel K (mpmath besselk x e^z, 40 digits; scipy kve cross-chec
     }
     expect(bad, bad.join('\n')).toEqual([]);
     expect(rows.filter((r) => r.z >= LARGE_Z_MIN).length).toBeGreaterThan(50);
+  });
+
+  it(`truncated Hankel series of sqrt(z) K~_1(z) through u^6 (z >= ${ASYMPTOTIC_Z_MIN}) vs mpmath besselk (A&S 9.7.2)`, () => {
+    // first omitted term 1.99 u^7 (A&S 9.7 remainder bound): 1.2e-11 at z = 40, falling as z^-7
+    const bad: string[] = [];
+    for (const r of rows) {
+      if (r.z < ASYMPTOTIC_Z_MIN) continue;
+      const tol = 1.99 * (1 / r.z) ** 7 + 1e-15;
+      const err = relErr(sqrtZK1ScaledAsymptotic(1 / r.z) / Math.sqrt(r.z), r.k1);
+      if (!(err <= tol)) bad.push(`z=${r.z} rel.diff=${err.toExponential(2)} tol=${tol.toExponential(2)}`);
+    }
+    expect(bad, bad.join('\n')).toEqual([]);
+    expect(relErr(sqrtZK1ScaledAsymptotic(1 / 40) / Math.sqrt(40), besselK1Scaled(40))).toBeGreaterThan(1e-12);
   });
 });

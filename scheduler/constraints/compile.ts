@@ -5,6 +5,10 @@
  * expressions compiled. Problems are returned as issues with the constraint's path
  * (`constraints[2].file`), all at once.
  *
+ * Spin-independent curves with a `target` and spin-dependent proton/neutron pairs combine the
+ * nucleon cross sections for the target nucleus (isospin.ts): isotope tables and the model's relative
+ * coupling signs are prepared here, the per-point work is a loop over at most nine isotopes.
+ *
  * Per point, `judgePoint` reads the input columns (NULL as NaN), computes the relic fraction xi when
  * a relic constraint rescales (xi = omega_h2 / central below the central value, else 1; direct
  * signals scale with xi, annihilation signals today with xi^2, shared notes direct.md §6.2), and sets
@@ -19,8 +23,20 @@ import { InvalidInputError, type Issue } from '../../physics/issue.js';
 import { PARAMETERS } from '../../physics/model.js';
 import { FIXED_OBSERVABLES } from '../../physics/observables.js';
 import { feldmanCousinsUpperLimit, poissonUpperLimit } from '../../physics/direct/statistics.js';
+import { DEFAULT_HADRONIC, type Hadronic } from '../../physics/setup.js';
 import { compileExpression, type ExpressionScope } from '../expressions.js';
-import { curveLookup, parseCurve, type LimitCurve } from './curve-file.js';
+import { curveLookup, parseCurve, type CurveLookup, type LimitCurve } from './curve-file.js';
+import {
+  ELEMENT_SYMBOLS,
+  SD_ELEMENT_SYMBOLS,
+  couplingSigns,
+  effectiveSiCm2,
+  sdCorrelation,
+  sdSumRule,
+  sdTarget,
+  siTarget,
+  type CouplingSigns,
+} from './isospin.js';
 import {
   DEFAULT_RHO_CURVE_GEVCM3,
   constraintColumn,
@@ -31,6 +47,7 @@ import {
   type LimitCurveConstraint,
   type OutOfRangePolicy,
   type RelicConstraint,
+  type SdLimitPairConstraint,
 } from './schema.js';
 
 /** What the constraints are applied to: the numeric columns of a scan and its local density. */
@@ -43,6 +60,11 @@ export interface ConstraintContext {
   readonly rhoLocalGeVcm3: number;
   /** directory that relative curve-file paths start from (the spec's or constraints file's) */
   readonly baseDir: string;
+  /**
+   * the scan's hadronic inputs (setup.hadronic), for the relative signs of the nucleon couplings
+   * used by targeted SI curves and SD pairs; default physics/setup DEFAULT_HADRONIC
+   */
+  readonly hadronic?: Hadronic;
 }
 
 /** A constraint with every default filled in and what was derived from its inputs. */
@@ -95,6 +117,8 @@ interface Builder {
   readonly inputs: string[];
   /** shared scope for expressions, refreshed per point when any expression exists */
   readonly scope: Record<string, number>;
+  /** relative nucleon-coupling signs of the model, derived on first use */
+  signs?: CouplingSigns;
 }
 
 /** Index of a point column in the input vector, adding it on first use. */
@@ -122,9 +146,9 @@ function relicTest(b: Builder, c: RelicConstraint): { test: Test; resolved: Reco
   return { test: (v) => v[iOmega]! <= max, resolved: { max } };
 }
 
-function readCurve(b: Builder, c: LimitCurveConstraint, at: string, xUnit: string, yUnit: string): { curve?: LimitCurve; file: string } {
-  const file = path.resolve(b.ctx.baseDir, c.file);
-  const where = `${at}.file`;
+/** Reads the curve file `relPath`; issues go to the constraint field `where` (`constraints[2].file`). */
+function readCurve(b: Builder, relPath: string, where: string, xUnit: string, yUnit: string): { curve?: LimitCurve; file: string } {
+  const file = path.resolve(b.ctx.baseDir, relPath);
   let text: string;
   try {
     const size = statSync(file).size;
@@ -135,7 +159,7 @@ function readCurve(b: Builder, c: LimitCurveConstraint, at: string, xUnit: strin
     text = readFileSync(file, 'utf8');
   } catch (err) {
     const reason = (err as NodeJS.ErrnoException).code ?? (err instanceof Error ? err.message : String(err));
-    b.issues.push({ code: 'curve_file', path: where, message: `cannot read curve file ${file} (${reason}); paths are relative to the spec or constraints file`, seen: c.file, allowed: 'a readable CSV file' });
+    b.issues.push({ code: 'curve_file', path: where, message: `cannot read curve file ${file} (${reason}); paths are relative to the spec or constraints file`, seen: relPath, allowed: 'a readable CSV file' });
     return { file };
   }
   const parsed = parseCurve(text, xUnit, yUnit, where);
@@ -143,12 +167,40 @@ function readCurve(b: Builder, c: LimitCurveConstraint, at: string, xUnit: strin
   return parsed.curve ? { curve: parsed.curve, file } : { file };
 }
 
+function policies(c: { outOfRange: LimitCurveConstraint['outOfRange'] }): { below: OutOfRangePolicy; above: OutOfRangePolicy } {
+  return typeof c.outOfRange === 'string' ? { below: c.outOfRange, above: c.outOfRange } : c.outOfRange;
+}
+
+function checkVersus(b: Builder, versus: string, at: string): void {
+  if (!b.ctx.parameters.includes(versus)) {
+    b.issues.push({ code: 'unknown_parameter', path: `${at}.versus`, message: `versus must be a numeric parameter of the scan`, seen: versus, allowed: b.ctx.parameters.join(', ') });
+  }
+}
+
+/** Issues when the scan lacks a column a combined test reads (m_chi and the nucleon cross sections). */
+function checkColumns(b: Builder, columns: readonly string[], where: string, purpose: string): void {
+  for (const col of columns) {
+    const known = col === 'm_chi' ? b.ctx.parameters.includes(col) : b.ctx.observables.includes(col);
+    if (!known) {
+      b.issues.push({ code: col === 'm_chi' ? 'unknown_parameter' : 'unknown_observable', path: where, message: `${purpose} reads ${col}, which the scan does not have`, seen: col, allowed: 'a scan that stores m_chi and the nucleon cross sections' });
+    }
+  }
+}
+
+/** The model's coupling signs (once per compilation); an issue on `where` when they are not unique. */
+function signsFor(b: Builder, where: string, which: 'si' | 'sd'): 1 | -1 | null {
+  b.signs ??= couplingSigns(b.ctx.hadronic ?? DEFAULT_HADRONIC);
+  const conflict = b.signs.conflict;
+  if (conflict !== undefined && conflict.startsWith(which === 'si' ? 'sign(f_p' : 'sign(a_p')) {
+    b.issues.push({ code: 'isospin_sign', path: where, message: `the relative sign of the proton and neutron couplings is not one sign for the whole model (${conflict}); a combined comparison needs it`, seen: which, allowed: 'a model whose structures share the sign' });
+    return null;
+  }
+  return b.signs[which];
+}
+
 function limitCurveTest(b: Builder, c: LimitCurveConstraint, at: string): { test: Test; resolved: Record<string, unknown> } | null {
   const before = b.issues.length;
-  const numericParams = b.ctx.parameters;
-  if (!numericParams.includes(c.versus)) {
-    b.issues.push({ code: 'unknown_parameter', path: `${at}.versus`, message: `versus must be a numeric parameter of the scan`, seen: c.versus, allowed: numericParams.join(', ') });
-  }
+  checkVersus(b, c.versus, at);
   if (!b.ctx.observables.includes(c.observable)) {
     b.issues.push({ code: 'unknown_observable', path: `${at}.observable`, message: `observable must be a numeric observable of the scan`, seen: c.observable, allowed: b.ctx.observables.join(', ') });
   }
@@ -156,16 +208,40 @@ function limitCurveTest(b: Builder, c: LimitCurveConstraint, at: string): { test
   if (c.rhoCurveGeVcm3 !== undefined && !isCrossSection) {
     b.issues.push({ code: 'invalid', path: `${at}.rhoCurveGeVcm3`, message: 'rhoCurveGeVcm3 applies only to direct-detection cross sections (sigma_*_cm2)', seen: String(c.rhoCurveGeVcm3), allowed: 'absent for this observable' });
   }
+  let signFnFp: 1 | -1 | null = null;
+  if (c.target !== undefined) {
+    if (!/^sigma_si_[pn]_cm2$/.test(c.observable)) {
+      b.issues.push({ code: 'invalid', path: `${at}.target`, message: 'target applies only to spin-independent cross sections (isospin-violation rescaling)', seen: c.target, allowed: 'absent for this observable, or observable sigma_si_p_cm2 / sigma_si_n_cm2' });
+    } else if (!ELEMENT_SYMBOLS.includes(c.target)) {
+      b.issues.push({ code: 'unknown_element', path: `${at}.target`, message: `no isotope data for element '${c.target}' (a single element symbol, case as written in the periodic table)`, seen: c.target, allowed: ELEMENT_SYMBOLS.join(', ') });
+    } else {
+      checkColumns(b, ['m_chi', 'sigma_si_p_cm2', 'sigma_si_n_cm2'], `${at}.target`, 'a limit curve with a target');
+      signFnFp = signsFor(b, `${at}.target`, 'si');
+    }
+  }
   if (b.issues.length > before) return null;
-  const { curve, file } = readCurve(b, c, at, parameterUnit(c.versus), observableUnit(c.observable));
+  const { curve, file } = readCurve(b, c.file, `${at}.file`, parameterUnit(c.versus), observableUnit(c.observable));
   if (!curve) return null;
-  const policy: { below: OutOfRangePolicy; above: OutOfRangePolicy } =
-    typeof c.outOfRange === 'string' ? { below: c.outOfRange, above: c.outOfRange } : c.outOfRange;
+  const policy = policies(c);
   const rhoCurve = isCrossSection ? (c.rhoCurveGeVcm3 ?? DEFAULT_RHO_CURVE_GEVCM3) : null;
   const rhoFactor = rhoCurve === null ? 1 : b.ctx.rhoLocalGeVcm3 / rhoCurve;
   const power = rescalePower(c.observable);
   const lookup = curveLookup(curve, policy.below, policy.above);
   const iX = input(b, c.versus);
+  const resolved = { file, outOfRange: policy, rhoCurveGeVcm3: rhoCurve, rhoFactor, rescalePower: power, curve: { header: curve.header, x: curve.x, y: curve.y } };
+  if (c.target !== undefined && signFnFp !== null) {
+    const t = siTarget(c.target);
+    const iM = input(b, 'm_chi');
+    const iP = input(b, 'sigma_si_p_cm2');
+    const iN = input(b, 'sigma_si_n_cm2');
+    const sign = signFnFp;
+    const test: Test = (v, xi) => {
+      const limit = lookup(v[iX]!);
+      if (limit === Infinity) return true;
+      return effectiveSiCm2(t, v[iM]!, v[iP]!, v[iN]!, sign) * rhoFactor * xi <= limit;
+    };
+    return { test, resolved: { ...resolved, compared: 'sigma_si_eff_cm2', fnOverFpSign: sign, isospin: 'direct.md §6.3 isotope sum (Feng et al. 2011)' } };
+  }
   const iY = input(b, c.observable);
   const test: Test = (v, xi) => {
     const limit = lookup(v[iX]!);
@@ -173,10 +249,67 @@ function limitCurveTest(b: Builder, c: LimitCurveConstraint, at: string): { test
     const scale = power === 0 ? rhoFactor : power === 1 ? rhoFactor * xi : rhoFactor * xi * xi;
     return v[iY]! * scale <= limit;
   };
-  return {
-    test,
-    resolved: { file, outOfRange: policy, rhoCurveGeVcm3: rhoCurve, rhoFactor, rescalePower: power, curve: { header: curve.header, x: curve.x, y: curve.y } },
+  return { test, resolved };
+}
+
+function sdLimitPairTest(b: Builder, c: SdLimitPairConstraint, at: string): { test: Test; resolved: Record<string, unknown> } | null {
+  const before = b.issues.length;
+  checkVersus(b, c.versus, at);
+  checkColumns(b, ['sigma_sd_p_cm2'], `${at}.proton`, 'a proton-only SD curve');
+  checkColumns(b, ['sigma_sd_n_cm2'], `${at}.neutron`, 'a neutron-only SD curve');
+  let signApAn: 1 | -1 | null = null;
+  if (c.combine === 'sum_rule' && c.target !== undefined) {
+    if (!SD_ELEMENT_SYMBOLS.includes(c.target)) {
+      const known = ELEMENT_SYMBOLS.includes(c.target);
+      b.issues.push({
+        code: known ? 'no_spin_data' : 'unknown_element', path: `${at}.target`,
+        message: known ? `element '${c.target}' has no isotope with both proton and neutron spin in the table (physics/direct/isotopes.ts), so its SD sum rule is undefined` : `no isotope data for element '${c.target}'`,
+        seen: c.target, allowed: SD_ELEMENT_SYMBOLS.join(', '),
+      });
+    } else {
+      checkColumns(b, ['m_chi'], `${at}.target`, 'the SD sum rule');
+      signApAn = signsFor(b, `${at}.target`, 'sd');
+    }
+  }
+  if (b.issues.length > before) return null;
+  const xUnit = parameterUnit(c.versus);
+  const proton = readCurve(b, c.proton, `${at}.proton`, xUnit, 'cm^2');
+  const neutron = readCurve(b, c.neutron, `${at}.neutron`, xUnit, 'cm^2');
+  if (!proton.curve || !neutron.curve) return null;
+  const policy = policies(c);
+  const rhoCurve = c.rhoCurveGeVcm3 ?? DEFAULT_RHO_CURVE_GEVCM3;
+  const rhoFactor = b.ctx.rhoLocalGeVcm3 / rhoCurve;
+  const lookP: CurveLookup = curveLookup(proton.curve, policy.below, policy.above);
+  const lookN: CurveLookup = curveLookup(neutron.curve, policy.below, policy.above);
+  const iX = input(b, c.versus);
+  const iP = input(b, 'sigma_sd_p_cm2');
+  const iN = input(b, 'sigma_sd_n_cm2');
+  // x = sigma / limit; a curve without constraint here ("pass", +Infinity) contributes 0 whatever the
+  // prediction (as a lone limit_curve would); a NaN prediction gives NaN, which fails
+  const ratios = (v: Float64Array, xi: number): [number, number] | null => {
+    const limP = lookP(v[iX]!);
+    const limN = lookN(v[iX]!);
+    if (limP === -Infinity || limN === -Infinity) return null;
+    const scale = rhoFactor * xi;
+    return [limP === Infinity ? 0 : (v[iP]! * scale) / limP, limN === Infinity ? 0 : (v[iN]! * scale) / limN];
   };
+  const table = (r: { curve?: LimitCurve; file: string }) => ({ file: r.file, header: r.curve!.header, x: r.curve!.x, y: r.curve!.y });
+  const resolved = { outOfRange: policy, rhoCurveGeVcm3: rhoCurve, rhoFactor, rescalePower: 1, curves: { proton: table(proton), neutron: table(neutron) } };
+  if (c.combine === 'separate') {
+    const test: Test = (v, xi) => {
+      const r = ratios(v, xi);
+      return r !== null && r[0] <= 1 && r[1] <= 1;
+    };
+    return { test, resolved };
+  }
+  const t = sdTarget(c.target!);
+  const iM = input(b, 'm_chi');
+  const sign = signApAn!;
+  const test: Test = (v, xi) => {
+    const r = ratios(v, xi);
+    return r !== null && sdSumRule(r[0], r[1], sign * sdCorrelation(t, v[iM]!)) <= 1;
+  };
+  return { test, resolved: { ...resolved, apAnSign: sign, sumRule: 'x + y + 2 sign(a_p a_n) rho sqrt(x y) <= 1, direct.md §6.4' } };
 }
 
 /** physics/direct/statistics reports its own argument names; these are the constraint's fields. */
@@ -272,6 +405,7 @@ export function compileConstraints(
     const built =
       c.kind === 'relic' ? relicTest(b, c)
       : c.kind === 'limit_curve' ? limitCurveTest(b, c, at)
+      : c.kind === 'sd_limit_pair' ? sdLimitPairTest(b, c, at)
       : c.kind === 'events_limit' ? eventsLimitTest(b, c, at)
       : c.kind === 'flux_limit' ? fluxLimitTest(b, c, at)
       : expressionTest(b, c, at);

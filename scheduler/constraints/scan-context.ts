@@ -62,6 +62,7 @@ export function contextFromLedger(db: Database.Database, scan: StoredScan, baseD
     observables: numericObservableNames(setup.detectors.map((d) => d.name), setup.targets.map((t) => t.name)).filter((o) => columns.has(o)),
     rhoLocalGeVcm3: setup.halo.local.rhoLocalGeVcm3,
     baseDir,
+    hadronic: setup.hadronic,
   };
 }
 
@@ -85,5 +86,6 @@ export function contextFromSpec(spec: ScanSpec, baseDir: string): ConstraintCont
     observables: numericObservableNames(setup.detectors.map((d) => d.name), setup.targets.map((t) => t.name)),
     rhoLocalGeVcm3: setup.halo.local.rhoLocalGeVcm3,
     baseDir,
+    hadronic: setup.hadronic,
   };
 }

@@ -26,6 +26,22 @@
  *      `rhoCurveGeVcm3`: the local density the curve assumed (direct-detection cross sections only,
  *      default 0.3 GeV/cm^3, the value most published limits use); the prediction is scaled by
  *      rho_scan / rho_curve before comparison (direct.md §6.2).
+ *      `target` (optional, spin-independent cross sections only): the element the curve was measured
+ *      on (`Xe`, `Ar`, `Ge`, `Si`, ...). Published SI limits assume f_n = f_p; with a target the
+ *      point's sigma_si_p and sigma_si_n are combined into the per-nucleon cross section that gives
+ *      the same rate on that element's isotopes (direct.md §6.3, isospin.ts), and that is compared
+ *      whichever of sigma_si_p_cm2 / sigma_si_n_cm2 is the `observable`. Without a target the
+ *      observable itself is compared (right for f_n = f_p).
+ *  - `sd_limit_pair`: spin-dependent proton-only and neutron-only limits applied together to
+ *      sigma_sd_p_cm2 and sigma_sd_n_cm2. `proton` and `neutron` are curve files (format and
+ *      interpolation as for limit_curve, both against `versus`, default m_chi); `outOfRange` and
+ *      `rhoCurveGeVcm3` as for limit_curve, applied to both curves. `combine`:
+ *      "sum_rule" (default) passes when x + y + 2 sign(a_p a_n) rho sqrt(x y) <= 1 with
+ *      x = sigma_p / lim_p, y = sigma_n / lim_n and rho from the spin content of `target` (required
+ *      then; one spin isotope: the (sqrt x +- sqrt y)^2 <= 1 rule of Tovey et al. 2000, direct.md
+ *      §6.4); "separate" passes when x <= 1 and y <= 1 (no target), which never excludes more than
+ *      the sum rule when the two terms add (a_p a_n <S_p><S_n> > 0, e.g. xenon and germanium for this
+ *      model) and is at most 4 times weaker there.
  *  - `events_limit`: expected signal events `events_<detector>` of a spec detector against the upper
  *      limit from `observed` events (integer >= 0) over a known `background` (expected events, default
  *      0) at confidence level `cl` (default 0.9), `method` "poisson" (classical, default) or
@@ -49,11 +65,14 @@ export const RESERVED_COLUMNS: readonly string[] = Object.freeze(['scan_id', 'co
 /** Most constraints in one set: each is a verdict column, and the judge packs a point's verdicts into the 52-bit integer range of a double. */
 export const MAX_CONSTRAINTS = 50;
 
-export const CONSTRAINT_KINDS = ['relic', 'limit_curve', 'events_limit', 'flux_limit', 'expression'] as const;
+export const CONSTRAINT_KINDS = ['relic', 'limit_curve', 'sd_limit_pair', 'events_limit', 'flux_limit', 'expression'] as const;
 export type ConstraintKind = (typeof CONSTRAINT_KINDS)[number];
 
 export const OUT_OF_RANGE_POLICIES = ['pass', 'fail', 'clamp', 'proportional'] as const;
 export type OutOfRangePolicy = (typeof OUT_OF_RANGE_POLICIES)[number];
+
+/** How an sd_limit_pair combines its proton and neutron curves. */
+export const SD_COMBINE_RULES = ['sum_rule', 'separate'] as const;
 
 /** Local density most published direct-detection limits assume (Baxter et al. 2021, EPJC 81, 907). */
 export const DEFAULT_RHO_CURVE_GEVCM3 = 0.3;
@@ -85,17 +104,46 @@ const relicSchema = z
 
 const policySchema = z.enum(OUT_OF_RANGE_POLICIES, { message: `out-of-range policy must be one of ${OUT_OF_RANGE_POLICIES.join(', ')}` });
 
+const outOfRangeSchema = z.union([policySchema, z.strictObject({ below: policySchema, above: policySchema })], {
+  message: `outOfRange is required: one of ${OUT_OF_RANGE_POLICIES.join(', ')}, or {below, above} with those values`,
+});
+
+const curveFile = z.string().min(1).max(4096);
+
+/** An element symbol; whether isotope data exist for it is checked by compile.ts. */
+const targetElement = z.string().min(1).max(8);
+
 const limitCurveSchema = z.strictObject({
   kind: z.literal('limit_curve'),
   name: constraintName,
   observable: z.string().min(1),
   versus: z.string().min(1).default('m_chi'),
-  file: z.string().min(1).max(4096),
-  outOfRange: z.union([policySchema, z.strictObject({ below: policySchema, above: policySchema })], {
-    message: `outOfRange is required: one of ${OUT_OF_RANGE_POLICIES.join(', ')}, or {below, above} with those values`,
-  }),
+  file: curveFile,
+  outOfRange: outOfRangeSchema,
   rhoCurveGeVcm3: positive.optional(),
+  target: targetElement.optional(),
 });
+
+const sdLimitPairSchema = z
+  .strictObject({
+    kind: z.literal('sd_limit_pair'),
+    name: constraintName,
+    versus: z.string().min(1).default('m_chi'),
+    proton: curveFile,
+    neutron: curveFile,
+    outOfRange: outOfRangeSchema,
+    combine: z.enum(SD_COMBINE_RULES, { message: `combine must be one of ${SD_COMBINE_RULES.join(', ')}` }).default('sum_rule'),
+    target: targetElement.optional(),
+    rhoCurveGeVcm3: positive.optional(),
+  })
+  .superRefine((c, ctx) => {
+    if (c.combine === 'sum_rule' && c.target === undefined) {
+      ctx.addIssue({ code: 'custom', path: ['target'], message: 'combine "sum_rule" needs the target element of the curves (its spin content sets the interference term); or use combine "separate"', input: '(missing)', params: { allowed: 'an element symbol such as Xe, Ge, F' } });
+    }
+    if (c.combine === 'separate' && c.target !== undefined) {
+      ctx.addIssue({ code: 'custom', path: ['target'], message: 'target is only used by combine "sum_rule"', input: c.target, params: { allowed: 'absent when combine is "separate"' } });
+    }
+  });
 
 const eventsLimitSchema = z.strictObject({
   kind: z.literal('events_limit'),
@@ -120,7 +168,7 @@ const expressionSchema = z.strictObject({
   expr: z.string().min(1).max(MAX_EXPRESSION_LENGTH),
 });
 
-export const constraintSchema = z.discriminatedUnion('kind', [relicSchema, limitCurveSchema, eventsLimitSchema, fluxLimitSchema, expressionSchema], {
+export const constraintSchema = z.discriminatedUnion('kind', [relicSchema, limitCurveSchema, sdLimitPairSchema, eventsLimitSchema, fluxLimitSchema, expressionSchema], {
   message: `kind must be one of ${CONSTRAINT_KINDS.join(', ')}`,
 });
 
@@ -140,6 +188,7 @@ export type ConstraintInput = z.input<typeof constraintSchema>;
 export type Constraint = z.output<typeof constraintSchema>;
 export type RelicConstraint = z.output<typeof relicSchema>;
 export type LimitCurveConstraint = z.output<typeof limitCurveSchema>;
+export type SdLimitPairConstraint = z.output<typeof sdLimitPairSchema>;
 export type EventsLimitConstraint = z.output<typeof eventsLimitSchema>;
 export type FluxLimitConstraint = z.output<typeof fluxLimitSchema>;
 export type ExpressionConstraint = z.output<typeof expressionSchema>;
@@ -148,6 +197,7 @@ export type ExpressionConstraint = z.output<typeof expressionSchema>;
 export const CONSTRAINT_KEYS: Readonly<Record<ConstraintKind, readonly string[]>> = Object.freeze({
   relic: Object.keys(relicSchema.shape),
   limit_curve: Object.keys(limitCurveSchema.shape),
+  sd_limit_pair: Object.keys(sdLimitPairSchema.shape),
   events_limit: Object.keys(eventsLimitSchema.shape),
   flux_limit: Object.keys(fluxLimitSchema.shape),
   expression: Object.keys(expressionSchema.shape),

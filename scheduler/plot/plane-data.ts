@@ -2,7 +2,7 @@
  * Reads what a picture of one plane needs from a ledger, choosing how to show it:
  *  - `grid`: both axes take a small set of values that every combination covers (a grid scan's
  *    own axes): one cell per grid node, aggregated over any other axes;
- *  - `scatter`: up to SCATTER_MAX_POINTS points, each drawn;
+ *  - `scatter`: up to PLOT_DENSITY.scatterMax points (20,000), each drawn;
  *  - `binned`: more points than that: a 2-D histogram with per-bin aggregates computed in SQL
  *    (GROUP BY on bin indices), so a 10^6-point ledger never crosses into JavaScript point by point.
  * Grid detection reads the data, not the spec: a plane is gridded when the distinct x values times
@@ -16,11 +16,21 @@ import {
   type ColumnStats, type ScaleChoice, type ScaleType,
 } from './axis-scale.js';
 
-/** Knob: largest number of points drawn one by one (Plot renders 10^4 dots in about 0.4 s). */
-export const SCATTER_MAX_POINTS = 20_000;
-/** Knob: histogram bins along x and y for large ledgers (about 5 px per bin at the default size). */
-export const BINS_X = 110;
-export const BINS_Y = 80;
+/** How finely a plane is drawn: when points stop being drawn one by one, and the histogram size. */
+export interface PlaneDensity {
+  /** largest number of points drawn one by one */
+  readonly scatterMax: number;
+  /** histogram bins along x and y above that */
+  readonly binsX: number;
+  readonly binsY: number;
+}
+
+/**
+ * Knob: `plot` defaults. 2*10^4 dots render in about a second and keep the SVG near 2 MB; 110 x 80
+ * bins are about 5 px each at the default size.
+ */
+export const PLOT_DENSITY: PlaneDensity = Object.freeze({ scatterMax: 20_000, binsX: 110, binsY: 80 });
+export const SCATTER_MAX_POINTS = PLOT_DENSITY.scatterMax;
 /** Knob: a plane with more distinct values than this along an axis is never treated as a grid. */
 export const GRID_MAX_VALUES = 400;
 
@@ -37,6 +47,8 @@ export interface PlaneRequest {
   readonly xScale: ScaleChoice;
   readonly yScale: ScaleChoice;
   readonly colorScale: ScaleChoice;
+  /** default PLOT_DENSITY */
+  readonly density?: PlaneDensity;
 }
 
 export interface AxisInfo {
@@ -226,7 +238,8 @@ export function readPlane(view: LedgerView, req: PlaneRequest): PlaneData {
     }
   }
 
-  if (drawn <= SCATTER_MAX_POINTS) {
+  const density = req.density ?? PLOT_DENSITY;
+  if (drawn <= density.scatterMax) {
     const rows = view.db.prepare(
       `SELECT ${xc} AS x, ${yc} AS y, ${req.color ? `p.${quoteId(req.color)}` : 'NULL'} AS c, ${parts.survive} AS s
          FROM ${parts.from} WHERE ${where} ORDER BY p.point_id`,
@@ -239,13 +252,14 @@ export function readPlane(view: LedgerView, req: PlaneRequest): PlaneData {
 
   const [ux0, ux1] = xDomain.map((v) => toScaleSpace(xType, v)) as [number, number];
   const [uy0, uy1] = yDomain.map((v) => toScaleSpace(yType, v)) as [number, number];
-  const dx = (ux1 - ux0) / BINS_X;
-  const dy = (uy1 - uy0) / BINS_Y;
+  const { binsX, binsY } = density;
+  const dx = (ux1 - ux0) / binsX;
+  const dy = (uy1 - uy0) / binsY;
   const ux = xType === 'log' ? `log10(${xc})` : xc;
   const uy = yType === 'log' ? `log10(${yc})` : yc;
   const rows = view.db.prepare(
-    `SELECT MIN(${BINS_X - 1}, CAST((${ux} - ?) / ? AS INTEGER)) AS i,
-            MIN(${BINS_Y - 1}, CAST((${uy} - ?) / ? AS INTEGER)) AS j, ${aggregates}
+    `SELECT MIN(${binsX - 1}, CAST((${ux} - ?) / ? AS INTEGER)) AS i,
+            MIN(${binsY - 1}, CAST((${uy} - ?) / ? AS INTEGER)) AS j, ${aggregates}
        FROM ${parts.from} WHERE ${where} GROUP BY i, j`,
   ).all(ux0, dx, uy0, dy, ...params) as (AggregateRow & { i: number; j: number })[];
   const cells: Cell[] = rows.map((r) => ({

@@ -9,7 +9,7 @@ import fs from 'node:fs';
 import path from 'node:path';
 import { InvalidInputError, type Issue } from '../../physics/issue.js';
 import { LedgerView } from './ledger-view.js';
-import { readPlane, type PlaneData } from './plane-data.js';
+import { readPlane, type PlaneData, type PlaneDensity } from './plane-data.js';
 import type { ScaleChoice } from './axis-scale.js';
 import { renderPlane, type Overlay } from './render-plane.js';
 import { relicContour } from './relic-contour.js';
@@ -32,6 +32,8 @@ export interface PlaneOptions {
   readonly colorScale?: ScaleChoice;
   readonly width?: number;
   readonly height?: number;
+  /** default PLOT_DENSITY (plane-data.ts); the report draws coarser to stay small */
+  readonly density?: PlaneDensity;
 }
 
 export interface PlotRequest extends PlaneOptions {
@@ -86,7 +88,7 @@ export function planeImage(view: LedgerView, ledgerFile: string, opts: PlaneOpti
 
   const data = readPlane(view, {
     scanId, x: opts.x, y: opts.y, color: opts.color, survivorsOnly: opts.survivorsOnly ?? false, constraintSet,
-    xScale: opts.xScale ?? 'auto', yScale: opts.yScale ?? 'auto', colorScale: opts.colorScale ?? 'auto',
+    xScale: opts.xScale ?? 'auto', yScale: opts.yScale ?? 'auto', colorScale: opts.colorScale ?? 'auto', density: opts.density,
   });
   const overlays: Overlay[] = [];
   const extraNotes: string[] = [];

@@ -197,7 +197,39 @@ function placed(svg: SvgElement, x: number, y: number): string {
   svg.removeAttribute('class');
   svg.setAttribute('x', String(x));
   svg.setAttribute('y', String(y));
-  return svg.outerHTML;
+  return trimCoordinates(svg.outerHTML);
+}
+
+/**
+ * Rounds coordinates in geometry attributes to 0.1 px (PNGs are drawn at 2x, so 0.05 px at most),
+ * which shortens Plot's output by about a third. Text and labels are untouched.
+ */
+function trimCoordinates(svg: string): string {
+  const edgesKept = svg.replace(/<rect\b[^>]*>/g, roundRectEdges);
+  return edgesKept.replace(/ (x|y|x1|x2|y1|y2|cx|cy|width|height|d|transform)="([^"]*)"/g,
+    (_m, name: string, value: string) => ` ${name}="${value.replace(/(\d\.\d)\d+/g, '$1')}"`);
+}
+
+/**
+ * Rounds a rect's edges rather than its position and size, so neighbouring cells still share
+ * their edge exactly (rounding x and width apart leaves hairline gaps between heat-map cells).
+ */
+function roundRectEdges(tag: string): string {
+  const attr = (name: string): number | null => {
+    const m = new RegExp(` ${name}="([^"]*)"`).exec(tag);
+    return m ? Number(m[1]) : null;
+  };
+  const r = (v: number): number => Math.round(v * 10) / 10;
+  let out = tag;
+  for (const [pos, size] of [['x', 'width'], ['y', 'height']] as const) {
+    const p = attr(pos);
+    const w = attr(size);
+    if (p === null || w === null || !Number.isFinite(p) || !Number.isFinite(w)) continue;
+    const lo = r(p);
+    const hi = r(p + w);
+    out = out.replace(new RegExp(` ${pos}="[^"]*"`), ` ${pos}="${lo}"`).replace(new RegExp(` ${size}="[^"]*"`), ` ${size}="${r(hi - lo)}"`);
+  }
+  return out;
 }
 
 function plotSvg(data: PlaneData, options: RenderOptions, width: number, height: number, y: number): string {

@@ -8,6 +8,7 @@ import path from 'node:path';
 import { InvalidInputError } from '../../physics/issue.js';
 import { LedgerView, type ScanRow } from '../plot/ledger-view.js';
 import { planeImage, writeWhole } from '../plot/plot-plane.js';
+import type { PlaneDensity } from '../plot/plane-data.js';
 import { summarizeScan } from './survivor-summary.js';
 import { standardPlanes } from './standard-planes.js';
 import { reportHtml, type ProvenanceItem, type ReportFigure } from './report-page.js';
@@ -28,6 +29,12 @@ export interface ReportResult {
   readonly skipped: readonly string[];
   readonly sets: readonly string[];
 }
+
+/**
+ * Knob: the report's planes are drawn coarser than `plot` so four of them keep the page to a few MB:
+ * scans beyond 4,000 points are binned, 80 x 60 bins.
+ */
+export const REPORT_DENSITY: PlaneDensity = Object.freeze({ scatterMax: 4_000, binsX: 80, binsY: 60 });
 
 /** Scans columns shown as JSON documents rather than table cells. */
 const DOCUMENT_COLUMNS: Readonly<Record<string, string>> = {
@@ -82,7 +89,7 @@ export function writeReport(req: ReportRequest): ReportResult {
     const summaries = summarizeScan(view, scanId);
     const { planes, skipped } = standardPlanes(view, scanId);
     const figures: ReportFigure[] = planes.map((p) => {
-      const image = planeImage(view, req.db, { x: p.x, y: p.y, color: p.color, set: set ?? undefined, scan: String(scanId), width: 640, height: 480 });
+      const image = planeImage(view, req.db, { x: p.x, y: p.y, color: p.color, set: set ?? undefined, scan: String(scanId), width: 640, height: 480, density: REPORT_DENSITY });
       return { heading: p.heading, svg: image.svg, notes: image.notes };
     });
     const points = (view.db.prepare('SELECT COUNT(*) AS n FROM points WHERE scan_id = ?').get(scanId) as { n: number }).n;

@@ -127,6 +127,24 @@ describe('grid planes', () => {
     expect(faded.length).toBe(600 - survivors);
   });
 
+  it('keeps neighbouring heat-map cells edge to edge after coordinate rounding (hairline gaps regression)', () => {
+    const out = path.join(dir, 'edges.svg');
+    writePlot({ db: gridDb(), out, x: 'm_chi', y: 'm_med', color: 'omega_h2' });
+    const rects = [...parseSvg(out).querySelectorAll('[aria-description="cells"] rect')].map((r) => ({
+      x: Number(r.getAttribute('x')), y: Number(r.getAttribute('y')), w: Number(r.getAttribute('width')), h: Number(r.getAttribute('height')),
+    }));
+    const rows = new Map<number, typeof rects>();
+    for (const r of rects) rows.set(r.y, [...(rows.get(r.y) ?? []), r]);
+    expect(rows.size).toBe(20);
+    for (const row of rows.values()) {
+      row.sort((a, b) => a.x - b.x);
+      for (let i = 1; i < row.length; i++) {
+        const gap = row[i]!.x - (row[i - 1]!.x + row[i - 1]!.w);
+        expect(Math.abs(gap), `gap between cells at x=${row[i - 1]!.x} and ${row[i]!.x}`).toBeLessThan(1e-9);
+      }
+    }
+  });
+
   it('finds the relic line exactly where the synthetic field crosses 0.120', () => {
     const view = LedgerView.open(gridDb());
     try {

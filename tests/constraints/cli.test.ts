@@ -10,6 +10,7 @@ import { tmpdir } from 'node:os';
 import path from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { runCommand } from './cli-harness.js';
+import { effectiveSiCm2, siTarget } from '../../scheduler/constraints/isospin.js';
 import { FIXTURE_SPEC, fixturePoint, writeFixtureLedger } from './ledger-fixture.js';
 
 const N = 400;
@@ -34,10 +35,13 @@ function constraintsFile(content: unknown): string {
 writeFileSync(path.join(dir, 'curve.csv'), '# invented\nm_chi [GeV], sigma [cm^2]\n10, 1e-45\n1000, 1e-46\n');
 writeFileSync(path.join(dir, 'curve-pb.csv'), 'm_chi [GeV], sigma [pb]\n10, 1e-9\n1000, 1e-10\n');
 writeFileSync(path.join(dir, 'curve-order.csv'), 'm_chi [GeV], sigma [cm^2]\n100, 1e-45\n10, 1e-46\n');
+writeFileSync(path.join(dir, 'sd-p.csv'), '# invented\nm_chi [GeV], sigma_sd_p [cm^2]\n10, 1e-39\n1000, 1e-39\n');
+writeFileSync(path.join(dir, 'sd-n.csv'), '# invented\nm_chi [GeV], sigma_sd_n [cm^2]\n10, 1e-41\n1000, 1e-41\n');
 
 const relic = { kind: 'relic', name: 'relic' };
 const curve = { kind: 'limit_curve', observable: 'sigma_si_p_cm2', file: 'curve.csv', outOfRange: 'pass' };
 const events = { kind: 'events_limit', detector: 'toyxe', observed: 2 };
+const pair = { kind: 'sd_limit_pair', proton: 'sd-p.csv', neutron: 'sd-n.csv', outOfRange: 'pass', target: 'Xe' };
 
 beforeAll(async () => {
   writeFixtureLedger(db, N);
@@ -77,6 +81,17 @@ describe('malformed constraints files exit 2, name the field and leave the ledge
     ['curve: unknown observable', one({ ...curve, observable: 'sigma_si' }), 'constraints[0].observable'],
     ['curve: unknown versus', one({ ...curve, versus: 'mass' }), 'constraints[0].versus'],
     ['curve: density for a non-direct observable', one({ ...curve, observable: 'omega_h2', rhoCurveGeVcm3: 0.3 }), 'constraints[0].rhoCurveGeVcm3'],
+    ['curve: target on a non-SI observable', one({ ...curve, observable: 'sigma_sd_n_cm2', target: 'Xe' }), 'constraints[0].target'],
+    ['curve: target not an element with data', one({ ...curve, target: 'Xenon' }), 'constraints[0].target'],
+    ['curve: target as a number', one({ ...curve, target: 54 }), 'constraints[0].target'],
+    ['sd pair: sum rule without target', one({ ...pair, target: undefined }), 'constraints[0].target'],
+    ['sd pair: target with combine separate', one({ ...pair, combine: 'separate' }), 'constraints[0].target'],
+    ['sd pair: target without spin data', one({ ...pair, target: 'Ar' }), 'constraints[0].target'],
+    ['sd pair: unknown combine', one({ ...pair, combine: 'max' }), 'constraints[0].combine'],
+    ['sd pair: neutron curve missing', one({ ...pair, neutron: undefined }), 'constraints[0].neutron'],
+    ['sd pair: proton file not found', one({ ...pair, proton: 'nope.csv' }), 'constraints[0].proton'],
+    ['sd pair: neutron curve in pb', one({ ...pair, neutron: 'curve-pb.csv' }), 'constraints[0].neutron'],
+    ['sd pair: unknown key file', one({ ...pair, file: 'curve.csv' }), 'constraints[0].file'],
     ['events: unknown detector', one({ ...events, detector: 'lux' }), 'constraints[0].detector'],
     ['events: negative count', one({ ...events, observed: -1 }), 'constraints[0].observed'],
     ['events: fractional count', one({ ...events, observed: 2.5 }), 'constraints[0].observed'],
@@ -192,6 +207,25 @@ describe('judge and survivors', () => {
     expect(lines.length).toBe(5);
     expect(lines[0]).toMatch(/point_id\s+dm\s+mediator\s+m_chi/);
     expect(new Set(lines.map((l) => l.length)).size).toBe(1);
+  });
+
+  it('a targeted SI curve and an SD pair judge as a set (wiring; the physics is checked in isospin.test.ts)', async () => {
+    const r = await runCommand(['judge', db, '--constraints', constraintsFile({ constraints: [{ ...curve, name: 'si_xe', target: 'Xe' }, { ...pair, name: 'sd_xe' }] }), '--set', 'isospin', '--json']);
+    expect(r.code, r.stderr).toBe(0);
+    const s = JSON.parse(r.stdout) as { points: number; constraints: { name: string; failed: number }[] };
+    // sigma_eff on xenon (f_n/f_p > 0 in this model) against the same curve as passes(); scan rho 0.4, curve 0.3
+    const xe = siTarget('Xe');
+    const failsXe = Array.from({ length: N }, (_, i) => fixturePoint(i, N)).filter((p) => {
+      if (p.m_chi < 10 || p.m_chi > 1000) return false;
+      const limit = Math.exp(Math.log(1e-45) + ((Math.log(p.m_chi) - Math.log(10)) / (Math.log(1000) - Math.log(10))) * (Math.log(1e-46) - Math.log(1e-45)));
+      return effectiveSiCm2(xe, p.m_chi, p.sigma_si_p_cm2, p.sigma_si_n_cm2, 1) * (0.4 / 0.3) > limit;
+    }).length;
+    const failsUntargeted = Array.from({ length: N }, (_, i) => i).filter((i) => passes(i, true) !== passes(i, false)).length;
+    expect(s.constraints.map((c) => c.name)).toEqual(['si_xe', 'sd_xe']);
+    expect(s.constraints[0]!.failed).toBe(failsXe);
+    // sigma_si_n (1e-47) <= sigma_si_p in the fixture, so the neutron part is smaller: fewer failures
+    expect(failsXe).toBeLessThan(failsUntargeted);
+    expect(s.constraints[1]!.failed).toBe(0); // the fixture has no SD signal
   });
 
   const bad: [string, string[], string][] = [

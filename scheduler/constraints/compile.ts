@@ -190,12 +190,12 @@ function checkColumns(b: Builder, columns: readonly string[], where: string, pur
 /** The model's coupling signs (once per compilation); an issue on `where` when they are not unique. */
 function signsFor(b: Builder, where: string, which: 'si' | 'sd'): 1 | -1 | null {
   b.signs ??= couplingSigns(b.ctx.hadronic ?? DEFAULT_HADRONIC);
-  const conflict = b.signs.conflict;
-  if (conflict !== undefined && conflict.startsWith(which === 'si' ? 'sign(f_p' : 'sign(a_p')) {
-    b.issues.push({ code: 'isospin_sign', path: where, message: `the relative sign of the proton and neutron couplings is not one sign for the whole model (${conflict}); a combined comparison needs it`, seen: which, allowed: 'a model whose structures share the sign' });
+  const sign = b.signs[which];
+  if (sign === undefined) {
+    b.issues.push({ code: 'isospin_sign', path: where, message: `the relative sign of the proton and neutron couplings differs between the model's structures (${b.signs.detail}); a combined comparison needs one sign`, seen: which, allowed: 'a model whose structures share the sign' });
     return null;
   }
-  return b.signs[which];
+  return sign;
 }
 
 function limitCurveTest(b: Builder, c: LimitCurveConstraint, at: string): { test: Test; resolved: Record<string, unknown> } | null {

@@ -152,10 +152,12 @@ export function sdSumRule(x: number, y: number, kappa: number): number {
 
 /** Signs of f_n/f_p (SI) and a_n/a_p (SD) shared by every structure of the model. */
 export interface CouplingSigns {
-  readonly si: 1 | -1;
-  readonly sd: 1 | -1;
-  /** why a sign could not be fixed (structures disagree); absent when both are fixed */
-  readonly conflict?: string;
+  /** sign of f_p f_n; undefined when structures disagree */
+  readonly si: 1 | -1 | undefined;
+  /** sign of a_p a_n; undefined when structures disagree */
+  readonly sd: 1 | -1 | undefined;
+  /** the sign per structure, for messages: 'dirac/scalar si +1 sd 0, ...' */
+  readonly detail: string;
 }
 
 /**
@@ -186,13 +188,6 @@ export function couplingSigns(hadronic: Hadronic): CouplingSigns {
       labels.push(`${dm}/${mediator}`);
     }
   }
-  const siSign = commonSign(si);
-  const sdSign = commonSign(sd);
-  if (siSign !== undefined && sdSign !== undefined) return Object.freeze({ si: siSign, sd: sdSign });
-  const list = (products: number[]) => labels.map((l, k) => `${l} ${Math.sign(products[k]!)}`).join(', ');
-  return Object.freeze({
-    si: siSign ?? 1,
-    sd: sdSign ?? 1,
-    conflict: siSign === undefined ? `sign(f_p f_n) differs between structures: ${list(si)}` : `sign(a_p a_n) differs between structures: ${list(sd)}`,
-  });
+  const detail = labels.map((l, k) => `${l} si ${Math.sign(si[k]!)} sd ${Math.sign(sd[k]!)}`).join(', ');
+  return Object.freeze({ si: commonSign(si), sd: commonSign(sd), detail });
 }

@@ -139,9 +139,16 @@ describe('relative coupling signs of the model (physics/direct nucleonCouplings)
   it('f_n/f_p > 0 and a_n/a_p > 0 for every structure with hadronic sets A/B and H/B/L', () => {
     for (const scalarSet of ['A', 'B'] as const) {
       for (const spinSet of ['H', 'B', 'L']) {
-        expect(couplingSigns({ scalarSet, spinSet })).toEqual({ si: 1, sd: 1 });
+        expect(couplingSigns({ scalarSet, spinSet })).toMatchObject({ si: 1, sd: 1 });
       }
     }
+  });
+  it('the detail lists every structure: Majorana + vector and the pseudoscalar mediator do not scatter at q = 0', () => {
+    const { detail } = couplingSigns({ scalarSet: 'A', spinSet: 'H' });
+    expect(detail).toContain('dirac/vector si 1 sd 0');
+    expect(detail).toContain('majorana/vector si 0 sd 0');
+    expect(detail).toContain('dirac/axial si 0 sd 1');
+    expect(detail).toContain('dirac/pseudoscalar si 0 sd 0');
   });
   it('commonSign: one sign, +1 when nothing scatters, undefined when structures disagree', () => {
     expect(commonSign([2, 0, 3])).toBe(1);

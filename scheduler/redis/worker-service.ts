@@ -47,6 +47,11 @@ export interface WorkerServiceOptions {
   readonly lockDurationMs?: number;
   /** how often stalled jobs are looked for, ms; default 10000 */
   readonly stalledIntervalMs?: number;
+  /**
+   * chunks taken beyond the threads, waiting in this worker so a thread never idles through the Redis
+   * round trips between chunks; default 1. Their locks are renewed like the running ones.
+   */
+  readonly prefetch?: number;
   /** stalls (killed workers) a chunk survives before it fails; default 3 */
   readonly maxStalledCount?: number;
   /** period of scan discovery and the restart check, ms; default 1000 */
@@ -83,7 +88,7 @@ class ScanServer {
     void server.pump();
     server.bull = new Worker<ChunkJobData>(a.queue, (job) => server.process(job), {
       // the name becomes each job's processedBy, so a chunk can be traced to the worker holding it
-      name: workerId, connection, prefix: o.prefix, concurrency: o.concurrency, lockDuration: o.lockDurationMs,
+      name: workerId, connection, prefix: o.prefix, concurrency: o.concurrency + o.prefetch, lockDuration: o.lockDurationMs,
       stalledInterval: o.stalledIntervalMs, maxStalledCount: o.maxStalledCount,
     });
     server.bull.on('error', onError);
@@ -154,7 +159,7 @@ export class WorkerService {
 
   constructor(options: WorkerServiceOptions) {
     if (!Number.isInteger(options.concurrency) || options.concurrency < 1) throw new RangeError(`concurrency must be a positive integer, got ${options.concurrency}`);
-    this.o = { lockDurationMs: 15_000, stalledIntervalMs: 10_000, maxStalledCount: 3, pollMs: 1000, heartbeatMs: 2000, ...options };
+    this.o = { lockDurationMs: 15_000, stalledIntervalMs: 10_000, prefetch: 1, maxStalledCount: 3, pollMs: 1000, heartbeatMs: 2000, ...options };
     this.log = options.log ?? ((line) => process.stderr.write(`${line}\n`));
     this.connection = bullConnection(redisOptionsFromUrl(options.url));
     this.id = `${hostname()}-${process.pid}-${randomBytes(3).toString('hex')}`;

@@ -10,6 +10,8 @@ import { Queue } from 'bullmq';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { runScan } from '../../scheduler/run.js';
 import { bullConnection, redisOptionsFromUrl } from '../../scheduler/redis/connection.js';
+import { ledgerTag } from '../../scheduler/redis/keys.js';
+import { redisLiveStatus } from '../../scheduler/redis/status.js';
 import { RedisTransport } from '../../scheduler/redis/transport.js';
 import { WorkerService } from '../../scheduler/redis/worker-service.js';
 import { FAKE_PHYSICS, pointRows, query, tempDir, writeSpec } from '../scan/helpers.js';
@@ -56,20 +58,23 @@ describe.skipIf(!available)('fault tolerance on Redis', () => {
 
   it('a worker SIGKILLed while it holds a chunk: the chunk runs elsewhere, nothing lost or duplicated', async () => {
     const p = prefix();
-    const a = startWorker(TEST_REDIS_URL, p, { msPerPoint: 40 });
+    const a = startWorker(TEST_REDIS_URL, p, { msPerPoint: 60 });
     cleanups.push(() => killAll([a]));
-    const b = new WorkerService({ url: TEST_REDIS_URL, prefix: p, concurrency: 1, codeVersion: 'test', physicsModule: FAKE_PHYSICS, pollMs: 200, heartbeatMs: 500, lockDurationMs: 2000, stalledIntervalMs: 1000, log: silent });
-    await b.start();
-    cleanups.push(() => b.close(true));
     const t = new RedisTransport({ url: TEST_REDIS_URL, prefix: p, ledgerTag: 'test', codeVersion: 'test', pollMs: 200, log: silent });
     const db = path.join(tmp.dir, 'worker-kill.db');
     const scan = runScan({ specPath: specFile, dbPath: db, physicsModule: FAKE_PHYSICS, quiet: true, log: silent, chunkSize: CHUNK, transport: t });
     const queue = await waitFor('the work queue', () => t.workQueue !== '' && new Queue(t.workQueue, { connection: bullConnection(redisOptionsFromUrl(TEST_REDIS_URL)), prefix: p }));
     try {
       const held = await waitFor('worker A to hold a chunk', async () => (await queue.getJobs(['active'])).find((j) => j.processedBy?.includes(`-${a.pid}-`)), 90_000);
-      await sleep(Math.random() * 200);
+      // B joins now, so that A surely holds chunks when it dies; B picks up the rest and A's stalled ones
+      const b = new WorkerService({ url: TEST_REDIS_URL, prefix: p, concurrency: 1, codeVersion: 'test', physicsModule: FAKE_PHYSICS, pollMs: 200, heartbeatMs: 500, lockDurationMs: 2000, stalledIntervalMs: 1000, log: silent });
+      await b.start();
+      cleanups.push(() => b.close(true));
+      await sleep(Math.random() * 300);
+      const heldAtKill = (await queue.getJobs(['active'])).filter((j) => j.processedBy?.includes(`-${a.pid}-`)).length;
       a.kill('SIGKILL');
       await exited(a);
+      expect(heldAtKill, 'chunks A held when killed').toBeGreaterThan(0);
       const s = await scan;
       expect(s.status, a.output()).toBe('done');
       expect(held.id).toMatch(/^s1-[0-9a-f]{12}-c\d{6}$/);
@@ -135,14 +140,15 @@ describe.skipIf(!available)('fault tolerance on Redis', () => {
     expectExactlyOnce(db);
   }, 180_000);
 
-  it('workers joining late take chunks, and a worker that leaves does not stop the scan', async () => {
+  it('workers joining late take chunks, status shows them and the queue, and a worker leaving does not stop the scan', async () => {
     const p = prefix();
     const mk = () => new WorkerService({ url: TEST_REDIS_URL, prefix: p, concurrency: 1, codeVersion: 'test', physicsModule: SLOW_PHYSICS, pollMs: 200, heartbeatMs: 500, log: silent });
     const first = mk();
     await first.start();
     cleanups.push(() => first.close(true));
-    const t = new RedisTransport({ url: TEST_REDIS_URL, prefix: p, ledgerTag: 'test', codeVersion: 'test', pollMs: 200, log: silent });
     const db = path.join(tmp.dir, 'late.db');
+    // the ledger tag of the real CLI, so that status finds the queue from the ledger path
+    const t = new RedisTransport({ url: TEST_REDIS_URL, prefix: p, ledgerTag: ledgerTag(db), codeVersion: 'test', pollMs: 200, log: silent });
     const scan = runScan({ specPath: specFile, dbPath: db, physicsModule: FAKE_PHYSICS, quiet: true, log: silent, chunkSize: CHUNK, transport: t });
     await waitFor('a first chunk', () => {
       try {
@@ -151,9 +157,15 @@ describe.skipIf(!available)('fault tolerance on Redis', () => {
         return false;
       }
     }, 90_000);
+    const scanRow = query<{ id: number; spec_hash: string }>(db, 'SELECT id, spec_hash FROM scans')[0]!;
+    const live = await redisLiveStatus(TEST_REDIS_URL, p, db, [scanRow]);
+    expect(live.workers.length).toBe(1);
+    expect(live.scans.length).toBe(1);
+    expect(live.scans[0]!.chunks_queued + live.scans[0]!.chunks_running).toBeGreaterThan(0);
     const late = [mk(), mk()];
     await Promise.all(late.map((w) => w.start()));
     cleanups.push(() => Promise.all(late.map((w) => w.close(true))).then(() => undefined));
+    expect((await redisLiveStatus(TEST_REDIS_URL, p, db, [scanRow])).workers.length).toBe(3);
     await first.close();
     const s = await scan;
     expect(s.status).toBe('done');

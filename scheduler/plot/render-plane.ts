@@ -271,7 +271,7 @@ function colorBarSvg(data: PlaneData, width: number, x: number, y: number): { sv
   const placedSvg = placed(svg, x, y);
   const what = data.color
     ? data.mode === 'scatter' || (data.mode === 'grid' && data.pointsPerCell === 1) ? ''
-      : `${type === 'log' ? 'geometric mean' : 'mean'} per ${data.mode === 'grid' ? 'cell' : 'bin'}`
+      : `${type === 'log' ? 'geometric mean' : 'mean'} per ${data.mode === 'grid' ? 'cell' : 'bin'}${data.judged && !data.survivorsOnly ? ', of survivors where any' : ''}`
     : `points per ${data.mode === 'grid' ? 'cell' : 'bin'}`;
   return { svg: placedSvg, caption: what };
 }

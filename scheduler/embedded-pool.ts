@@ -35,8 +35,15 @@ type ThreadMessage =
 
 interface Slot {
   worker: Worker;
-  busy: ChunkRange | null;
+  /** chunks posted to this thread, in the order it evaluates them (at most PER_THREAD) */
+  posted: ChunkRange[];
 }
+
+/**
+ * Chunks posted to a thread ahead of time: the next one is already waiting in the thread's message
+ * queue when a result goes out, so the thread never idles during the round trip to the scheduler.
+ */
+const PER_THREAD = 2;
 
 export class EmbeddedPool implements Transport {
   readonly workers: number;
@@ -58,8 +65,8 @@ export class EmbeddedPool implements Transport {
     this.maxAttempts = options.maxAttempts ?? 3;
     this.physicsModule = options.physicsModule;
     this.description = `embedded pool, ${this.workers} worker thread${this.workers === 1 ? '' : 's'}`;
-    // one chunk running and one waiting per thread keeps every thread busy across the round trip
-    this.window = 2 * this.workers;
+    // every thread holds PER_THREAD chunks, plus one more each waiting here
+    this.window = (PER_THREAD + 1) * this.workers;
   }
 
   async open(work: ScanWork): Promise<void> {
@@ -104,7 +111,7 @@ export class EmbeddedPool implements Transport {
       const worker = new Worker(THREAD_ENTRY, {
         workerData: { resolvedSpecJson: work.resolvedSpecJson, physicsModule: this.physicsModule },
       });
-      const slot: Slot = { worker, busy: null };
+      const slot: Slot = { worker, posted: [] };
       let ready = false;
       worker.on('message', (msg: ThreadMessage) => {
         if (msg.type === 'ready') {
@@ -121,14 +128,12 @@ export class EmbeddedPool implements Transport {
         } else if (msg.type === 'fatal') {
           reject(new TransportStartError(`a worker thread could not prepare the scan: ${msg.error}`));
         } else if (msg.type === 'result') {
-          slot.busy = null;
+          this.unpost(slot, msg.result.chunk);
           this.attempts.delete(msg.result.chunk);
           this.deliver({ kind: 'result', result: msg.result });
           this.feed();
         } else {
-          const range = slot.busy!;
-          slot.busy = null;
-          this.retryOrFail(range, msg.error);
+          this.retryOrFail(this.unpost(slot, msg.chunk), msg.error);
           this.feed();
         }
       });
@@ -146,14 +151,19 @@ export class EmbeddedPool implements Transport {
   /** A thread died: its chunk is retried elsewhere and a replacement thread is started. */
   private lose(slot: Slot, reason: string): void {
     if (this.closed || !this.slots.delete(slot)) return;
-    const range = slot.busy;
-    slot.busy = null;
-    if (range) this.retryOrFail(range, reason);
+    for (const range of slot.posted.splice(0)) this.retryOrFail(range, reason);
     this.spawn().catch((err: Error) => {
       if (this.slots.size === 0) {
         for (const r of this.queue.splice(0)) this.deliver({ kind: 'failed', range: r, attempts: this.attempts.get(r.chunk) ?? 0, error: err.message });
       }
     });
+  }
+
+  /** Removes a finished chunk from its thread's list (threads answer in the order they were posted). */
+  private unpost(slot: Slot, chunk: number): ChunkRange {
+    const i = slot.posted.findIndex((r) => r.chunk === chunk);
+    if (i < 0) throw new Error(`a worker thread answered for chunk ${chunk}, which it was not given`);
+    return slot.posted.splice(i, 1)[0]!;
   }
 
   private retryOrFail(range: ChunkRange, error: string): void {
@@ -170,10 +180,11 @@ export class EmbeddedPool implements Transport {
   private feed(): void {
     if (this.closed) return;
     for (const slot of this.slots) {
-      if (slot.busy || this.queue.length === 0) continue;
-      const range = this.queue.shift()!;
-      slot.busy = range;
-      slot.worker.postMessage({ type: 'chunk', range });
+      while (slot.posted.length < PER_THREAD && this.queue.length > 0) {
+        const range = this.queue.shift()!;
+        slot.posted.push(range);
+        slot.worker.postMessage({ type: 'chunk', range });
+      }
     }
   }
 

@@ -24,7 +24,6 @@ import type { ChunkRange, Plan } from './plan.js';
 import { createProgress, formatDuration, progressMode, type ProgressReporter } from './progress.js';
 import { canonicalJson, loadSpecFile, makePlan, resolvedSpecJson, specHash, type ScanSpec } from './spec.js';
 import type { Transport } from './transport.js';
-import { createRedisTransport } from './redis/transport.js';
 import { compileConstraints, type CompiledConstraints } from './constraints/compile.js';
 import { formatSummary, judgeScan, type JudgeSummary } from './constraints/judge.js';
 import { contextFromSpec } from './constraints/scan-context.js';
@@ -67,6 +66,8 @@ export interface RunSummary {
   readonly chunksFailed: number;
   readonly erroredPoints: number;
   readonly elapsedMs: number;
+  /** wall time from the workers being ready to the last chunk stored, ms (the steady-state part of elapsedMs) */
+  readonly computeMs: number;
   /** the command that resumes this scan */
   readonly resumeCommand: string;
   /** verdicts of the spec's constraints (set SPEC_CONSTRAINT_SET), when the scan is done and has any */
@@ -243,7 +244,7 @@ export async function runScan(options: RunOptions): Promise<RunSummary> {
   const transport =
     options.transport ??
     (options.redisUrl
-      ? await createRedisTransport({ url: options.redisUrl, dbPath, codeVersion: version, log })
+      ? await (await import('./redis/transport.js')).createRedisTransport({ url: options.redisUrl, dbPath, codeVersion: version, log })
       : new EmbeddedPool({ workers: options.workers, physicsModule: options.physicsModule }));
   const workers = transport instanceof EmbeddedPool ? transport.workers : 1;
   let chunkSize: number;
@@ -300,6 +301,7 @@ export async function runScan(options: RunOptions): Promise<RunSummary> {
     }
 
     await transport.open({ scanKey: `s${scan.id}-${hash.slice(0, 12)}`, resolvedSpecJson: resolved, observableNames: prepared.observableNames });
+    const computeStarted = performance.now();
     progress = createProgress(progressMode(options.quiet ?? false));
     progress.start(plan.total, before.pointsDone);
     let pointsDone = before.pointsDone;
@@ -340,6 +342,7 @@ export async function runScan(options: RunOptions): Promise<RunSummary> {
       await transport.close();
     }
 
+    const computeMs = performance.now() - computeStarted;
     const after = ledger.progress(scan.id);
     const complete = after.chunksDone === plan.chunkCount;
     const status: ScanStatus = complete ? 'done' : stopping || wasAbandoned ? 'interrupted' : 'incomplete';
@@ -360,7 +363,7 @@ export async function runScan(options: RunOptions): Promise<RunSummary> {
     const summary: RunSummary = {
       dbPath, scanId: scan.id, scanName: spec.name, status, resumed: decision.existing !== null,
       pointsTotal: plan.total, pointsDone: after.pointsDone, pointsThisRun, chunksFailed: after.chunksFailed,
-      erroredPoints: ledger.erroredPoints(scan.id), elapsedMs: performance.now() - started, resumeCommand, judged, judgeNote,
+      erroredPoints: ledger.erroredPoints(scan.id), elapsedMs: performance.now() - started, computeMs, resumeCommand, judged, judgeNote,
     };
     ledger.checkpoint();
     return summary;

@@ -13,25 +13,26 @@ import path from 'node:path';
 import { runScan, type RunSummary } from '../../scheduler/run.js';
 import { pointRows, runCli, tempDir, writeSpec, type CliResult } from './helpers.js';
 
-/** 2 x 15 x 20 = 600 points of real physics, no detectors or targets (fast), chunks of 20. */
+/** 2 x 40 x 40 = 3200 points of real physics, no detectors or targets (fast), chunks of 20. */
 export const TRIAL_SPEC = {
   name: 'trial',
   model: { dm: 'dirac', g_chi: 0.8, g_q: 0.3 },
   axes: {
     mediator: { values: ['vector', 'scalar'] },
-    m_chi: { from: 5, to: 3000, steps: 15, spacing: 'log' },
-    m_med: { from: 10, to: 5000, steps: 20, spacing: 'log' },
+    m_chi: { from: 5, to: 3000, steps: 40, spacing: 'log' },
+    m_med: { from: 10, to: 5000, steps: 40, spacing: 'log' },
   },
 };
 export const TRIAL_CHUNK = 20;
-export const TRIAL_CHUNKS = 30;
+export const TRIAL_POINTS = 3200;
+export const TRIAL_CHUNKS = 160;
 
 const quietLog = (): void => {};
 
 /** Rows of an uninterrupted run (in-process, 1 worker, another chunk size than the trials). */
 export async function referenceRows(specFile: string, dir: string): Promise<string[][]> {
   const db = path.join(dir, 'reference.db');
-  await runScan({ specPath: specFile, dbPath: db, workers: 1, chunkSize: 45, quiet: true, log: quietLog });
+  await runScan({ specPath: specFile, dbPath: db, workers: 1, chunkSize: 450, quiet: true, log: quietLog });
   return pointRows(db);
 }
 
@@ -61,18 +62,25 @@ export interface TrialResult {
  * Starts `darksieve run` on 2 workers, sends `signal` once at least `afterChunks` chunks are done
  * (0: as soon as the scan exists), then resumes in-process with 2 workers.
  */
-export async function killTrial(specFile: string, dbFile: string, afterChunks: number, signal: 'SIGKILL' | 'SIGINT'): Promise<TrialResult> {
+export async function killTrial(
+  specFile: string, dbFile: string, afterChunks: number, signal: 'SIGKILL' | 'SIGINT', beforeSignal?: () => Promise<void>,
+): Promise<TrialResult> {
   let killedAfterChunks: number | null = null;
+  let signalling = false;
   const cli = await runCli(['run', specFile, '--db', dbFile, '--workers', '2', '--chunk', String(TRIAL_CHUNK)], {
     timeoutMs: 120_000,
     onStart: (child) => {
       const poll = setInterval(() => {
         if (child.exitCode !== null || child.signalCode !== null) return clearInterval(poll);
+        if (signalling) return;
         const done = doneChunks(dbFile);
         if (done >= afterChunks) {
+          signalling = true;
           clearInterval(poll);
-          killedAfterChunks = done;
-          child.kill(signal);
+          void (beforeSignal ?? (async () => {}))().finally(() => {
+            killedAfterChunks = doneChunks(dbFile);
+            child.kill(signal);
+          });
         }
       }, 20);
       child.on('close', () => clearInterval(poll));
@@ -91,7 +99,8 @@ export function killMoments(n: number, seed: number): number[] {
     x ^= x >>> 17;
     x ^= x << 5;
     x >>>= 0;
-    return x % (TRIAL_CHUNKS - 2);
+    // kill before the last third so the run is still going when the signal arrives
+    return x % Math.floor((2 * TRIAL_CHUNKS) / 3);
   });
 }
 

@@ -12,6 +12,7 @@
  * descriptions, the ledger and the Redis registry see `redactRedisUrl(url)` only.
  */
 import type { ConnectionOptions } from 'bullmq';
+import { isIP } from 'node:net';
 import { Redis, type RedisOptions } from 'ioredis';
 import { InvalidInputError } from '../../physics/issue.js';
 
@@ -75,7 +76,8 @@ export function redisOptionsFromUrl(url: string, field = '--redis'): RedisOption
     db,
     ...(u.username ? { username: decodeURIComponent(u.username) } : {}),
     ...(u.password ? { password: decodeURIComponent(u.password) } : {}),
-    ...(u.protocol === 'rediss:' ? { tls: { servername: host } } : {}),
+    // TLS verifies the server against Node's CAs (NODE_EXTRA_CA_CERTS adds a private one); SNI only for names
+    ...(u.protocol === 'rediss:' ? { tls: isIP(host) ? {} : { servername: host } } : {}),
   };
 }
 

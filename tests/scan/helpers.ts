@@ -58,7 +58,8 @@ export interface CliResult {
 /** Spawns the real CLI; `onStart` gets the child (to signal it); rejects after timeoutMs. */
 export function runCli(args: readonly string[], opts: { cwd?: string; timeoutMs?: number; env?: Record<string, string>; onStart?: (c: ChildProcess) => void } = {}): Promise<CliResult> {
   return new Promise((resolve, reject) => {
-    const child = spawn(process.execPath, [CLI, ...args], { cwd: opts.cwd ?? REPO, env: { ...process.env, ...opts.env }, stdio: ['ignore', 'pipe', 'pipe'] });
+    // REDIS_URL (CI exports it) would send `run` to Redis; these tests want the embedded pool unless they say otherwise
+    const child = spawn(process.execPath, [CLI, ...args], { cwd: opts.cwd ?? REPO, env: { ...process.env, REDIS_URL: '', ...opts.env }, stdio: ['ignore', 'pipe', 'pipe'] });
     let stdout = '';
     let stderr = '';
     child.stdout.on('data', (d: Buffer) => (stdout += d.toString()));

@@ -37,7 +37,11 @@
  * (direct.md §3.3).
  */
 import { BASE } from '../../physics/constants.js';
-import { ELEMENTS, nucleonCouplings, scalarSet, spinSet } from '../../physics/direct/index.js';
+// the same public functions physics/direct/index.ts exports, imported from their modules: the index
+// also loads the halo module and with it mathjs (about 1 s more start-up for `judge`, measured)
+import { scalarSet, spinSet } from '../../physics/direct/hadronic.js';
+import { ELEMENTS } from '../../physics/direct/isotopes.js';
+import { nucleonCouplings } from '../../physics/direct/nucleon.js';
 import { DM_KINDS, MEDIATOR_KINDS, type ModelPoint } from '../../physics/model.js';
 import type { Hadronic } from '../../physics/setup.js';
 

@@ -324,6 +324,9 @@ export function buildAnnihilation(point: ModelPoint, widthMedGeV: number, option
   };
 
   const poles: Pole[] = M > 2 * mChi ? [Object.freeze({ massGeV: M, widthGeV: widthMedGeV })] : [];
+  // the same propagator's pole when the mediator lies at or below 2 m_chi (the thermal average
+  // refines towards threshold when it is close)
+  const subthresholdPoles: Pole[] = M > 2 * mChi ? [] : [Object.freeze({ massGeV: M, widthGeV: widthMedGeV })];
   const thresholdsGeV = [...new Set(channels.map((c) => c.thresholdGeV).filter((t) => t > 2 * mChi))].sort((a, b) => a - b);
 
   return Object.freeze({
@@ -332,6 +335,7 @@ export function buildAnnihilation(point: ModelPoint, widthMedGeV: number, option
     sigmaTotalGeV2,
     sigmaVByChannelGeV2,
     poles: Object.freeze(poles),
+    subthresholdPoles: Object.freeze(subthresholdPoles),
     thresholdsGeV: Object.freeze(thresholdsGeV),
   });
 }

@@ -11,10 +11,16 @@ import { buildEnergyGrid, gridThermalAverage } from '../../physics/relic/energy-
 import { tabulateThermalAverage, thermalAverage, type ThermalAverageKnobs } from '../../physics/relic/thermal-average.js';
 import { DEFAULT_RELIC_KNOBS } from '../../physics/relic/relic.js';
 import fixture from '../fixtures/relic/thermal_average.json' with { type: 'json' };
+import subthreshold from '../fixtures/relic/thermal_average_subthreshold.json' with { type: 'json' };
 import { betaOf, pwave, resonance, swave, toyAnnihilation } from './toy-annihilation.js';
 
 const KNOBS: ThermalAverageKnobs = { laguerreNodes: 24, tMax: 100, relTol: 1e-10, poleCoreWidths: 2, gridNodes: 16 };
 const rel = (got: number, exp: number): number => Math.abs(got - exp) / Math.abs(exp);
+/** the relic stage's default thermal-average knobs */
+const DEFAULT_KNOBS_TA: ThermalAverageKnobs = {
+  laguerreNodes: DEFAULT_RELIC_KNOBS.laguerreNodes, tMax: DEFAULT_RELIC_KNOBS.tMax, relTol: DEFAULT_RELIC_KNOBS.quadRelTol,
+  poleCoreWidths: DEFAULT_RELIC_KNOBS.poleCoreWidths, gridNodes: DEFAULT_RELIC_KNOBS.gridNodes,
+};
 
 describe('constant sigma v_lab is returned exactly at every x (relic.md §2.1, [computed] there)', () => {
   it('x from 1 to 1e4, smooth (Laguerre) path', () => {
@@ -134,6 +140,44 @@ describe('per-point sigma(E) grid (physics/relic/energy-grid.ts) vs scipy quad o
     for (const x of [3, 10, 20, 30, 100]) gridThermalAverage(grid, x, 60);
     expect(calls).toBe(afterBuild);
     expect(afterBuild).toBe(grid.delta.length);
+  });
+});
+
+describe('poles just below threshold, listed in Annihilation.subthresholdPoles, vs scipy quad of eq. (2.1) (thermal_average_subthreshold.json)', () => {
+  interface SubCase { name: string; mChiGeV: number; massGeV: number; widthGeV: number; A_GeV2: number; x: number[]; sigmaV_GeV2: number[] }
+  const cases = (subthreshold as { cases: SubCase[] }).cases;
+  /** relic.md §6.3 toy shape with the pole below 2m; `listed` says whether the Annihilation names it */
+  const build = (c: SubCase, listed: boolean) => {
+    const base = resonance(c.mChiGeV, c.A_GeV2, c.massGeV, c.widthGeV);
+    expect(base.subthresholdPoles).toEqual([{ massGeV: c.massGeV, widthGeV: c.widthGeV }]);
+    return listed ? base : { ...base, subthresholdPoles: [] };
+  };
+  for (const c of cases) {
+    it(`${c.name}: direct path (tight knobs) within 1e-7, table grid path (default ${DEFAULT_RELIC_KNOBS.gridNodes} nodes) within 1e-6 for x >= 3`, () => {
+      const ann = build(c, true);
+      const grid = buildEnergyGrid(ann, 3, 1e4, DEFAULT_RELIC_KNOBS.tMax, DEFAULT_RELIC_KNOBS.gridNodes);
+      const bad: string[] = [];
+      c.x.forEach((x, i) => {
+        const expected = c.sigmaV_GeV2[i]!;
+        const direct = thermalAverage(ann, x, KNOBS);
+        // same 1e-7 as the other fixture cases (Laguerre at x ~ 1 would limit to 2e-6; the graded
+        // pieces replace it here)
+        if (!(rel(direct, expected) < 1e-7)) bad.push(`direct x=${x} got ${direct} expected ${expected} rel ${rel(direct, expected).toExponential(2)}`);
+        if (x >= 3) {
+          const g = gridThermalAverage(grid, x, DEFAULT_RELIC_KNOBS.tMax);
+          if (!(rel(g, expected) < 1e-6)) bad.push(`grid x=${x} got ${g} expected ${expected} rel ${rel(g, expected).toExponential(2)}`);
+        }
+      });
+      expect(bad, bad.join('\n')).toEqual([]);
+    });
+  }
+  it('regression: an unlisted pole 0.5% below threshold was invisible to the thermal average (Laguerre off by > 1e-3 near freeze-out)', () => {
+    const c = cases.find((k) => k.massGeV === 199)!;
+    const i = c.x.indexOf(20);
+    const unlisted = thermalAverage(build(c, false), 20, DEFAULT_KNOBS_TA);
+    const listed = thermalAverage(build(c, true), 20, DEFAULT_KNOBS_TA);
+    expect(rel(unlisted, c.sigmaV_GeV2[i]!), `unlisted got ${unlisted}`).toBeGreaterThan(1e-3);
+    expect(rel(listed, c.sigmaV_GeV2[i]!), `listed got ${listed}`).toBeLessThan(1e-6);
   });
 });
 

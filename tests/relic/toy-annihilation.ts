@@ -10,6 +10,7 @@ export interface ToySpec {
   /** sigma(s) in GeV^-2 */
   readonly sigma: (s: number) => number;
   readonly poles?: readonly Pole[];
+  readonly subthresholdPoles?: readonly Pole[];
   readonly thresholdsGeV?: readonly number[];
 }
 
@@ -26,6 +27,7 @@ export function toyAnnihilation(spec: ToySpec): Annihilation {
       return v;
     },
     poles: Object.freeze([...(spec.poles ?? [])]),
+    subthresholdPoles: Object.freeze([...(spec.subthresholdPoles ?? [])]),
     thresholdsGeV: Object.freeze([...(spec.thresholdsGeV ?? [])]),
   });
 }
@@ -50,5 +52,6 @@ export function resonance(mChiGeV: number, aGeV2: number, massGeV: number, width
     mChiGeV,
     sigma: (s) => (aGeV2 * mg2) / (((s - massGeV * massGeV) ** 2 + mg2) * 2 * betaOf(mChiGeV, s)),
     poles: massGeV > 2 * mChiGeV ? [{ massGeV, widthGeV }] : [],
+    subthresholdPoles: massGeV > 2 * mChiGeV ? [] : [{ massGeV, widthGeV }],
   });
 }

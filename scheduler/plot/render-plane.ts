@@ -271,7 +271,7 @@ function colorBarSvg(data: PlaneData, width: number, x: number, y: number): { sv
   const placedSvg = placed(svg, x, y);
   const what = data.color
     ? data.mode === 'scatter' || (data.mode === 'grid' && data.pointsPerCell === 1) ? ''
-      : `${type === 'log' ? 'geometric mean' : 'mean'} per ${data.mode === 'grid' ? 'cell' : 'bin'}${data.judged && !data.survivorsOnly ? ", survivors' where any" : ''}`
+      : `${type === 'log' ? 'geom. mean' : 'mean'} per ${data.mode === 'grid' ? 'cell' : 'bin'}${data.judged && !data.survivorsOnly ? ', of survivors if any' : ''}`
     : `points per ${data.mode === 'grid' ? 'cell' : 'bin'}`;
   return { svg: placedSvg, caption: what };
 }
@@ -329,7 +329,8 @@ export function renderPlane(data: PlaneData, options: RenderOptions): string {
   const bar = colorBarSvg(data, 250, bx, 42);
   if (bar) {
     const label = data.color ? `<tspan>${labelTspans(data.color.column, 11)}</tspan>` : '';
-    parts.push(`<text x="${width - 10}" y="38" font-size="11" text-anchor="end">${label}${bar.caption ? `<tspan font-size="9.5" fill="#444">  (${escapeXml(bar.caption)})</tspan>` : ''}</text>`);
+    // start-anchored over the bar: resvg misplaces end-anchored text that holds sub/superscript tspans
+    parts.push(`<text x="${bx}" y="38" font-size="11">${label}${bar.caption ? `<tspan font-size="9.5" fill="#444">  (${escapeXml(bar.caption)})</tspan>` : ''}</text>`);
     parts.push(bar.svg);
   }
   parts.push(plotSvg(data, options, width, plotHeight, header));

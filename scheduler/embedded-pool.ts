@@ -151,7 +151,10 @@ export class EmbeddedPool implements Transport {
   /** A thread died: its chunk is retried elsewhere and a replacement thread is started. */
   private lose(slot: Slot, reason: string): void {
     if (this.closed || !this.slots.delete(slot)) return;
-    for (const range of slot.posted.splice(0)) this.retryOrFail(range, reason);
+    // the thread was evaluating the first of its chunks; the others had not started
+    const [running, ...waiting] = slot.posted.splice(0);
+    this.queue.unshift(...waiting);
+    if (running) this.retryOrFail(running, reason);
     this.spawn().catch((err: Error) => {
       if (this.slots.size === 0) {
         for (const r of this.queue.splice(0)) this.deliver({ kind: 'failed', range: r, attempts: this.attempts.get(r.chunk) ?? 0, error: err.message });

@@ -10,6 +10,8 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { InvalidInputError } from '../../physics/issue.js';
 import { runScan, type RunOptions } from '../../scheduler/run.js';
 import { FAKE_PHYSICS, pointRows, query, tempDir, writeSpec } from './helpers.js';
+
+const CRASH_PHYSICS = new URL('./crash-physics.ts', import.meta.url).href;
 import { MALFORMED, malformed } from './malformed-specs.js';
 
 const spec = {
@@ -122,5 +124,21 @@ describe('run on the embedded pool', () => {
       expect(paths.some((p) => p.startsWith(c.path)), `${c.what}: ${paths.join(', ')}`).toBe(true);
       expect(readFileSync(db).equals(before), c.what).toBe(true);
     }
+  });
+
+  it('a chunk whose thread dies is retried, then marked failed; the scan goes on and a rerun retries it', async () => {
+    const db = path.join(tmp.dir, 'crash.db');
+    // g_q = 1.0 with the two largest m_chi kills the thread: 2 x 2 points, one per chunk of 5
+    const s = await runScan({ specPath: specFile, dbPath: db, physicsModule: CRASH_PHYSICS, quiet: true, log: silent, workers: 2, chunkSize: 5 });
+    expect(s.status).toBe('incomplete');
+    expect(s.chunksFailed).toBe(4);
+    expect(s.pointsDone).toBe(TOTAL - 4 * 5);
+    const failed = query<{ status: string; attempts: number; error: string }>(db, `SELECT status, attempts, error FROM chunks WHERE status = 'failed'`);
+    expect(failed.length).toBe(4);
+    expect(failed[0]).toEqual({ status: 'failed', attempts: 3, error: 'worker thread exited with code 3' });
+    const again = await runScan({ specPath: specFile, dbPath: db, physicsModule: FAKE_PHYSICS, quiet: true, log: silent, workers: 2 });
+    expect(again.status).toBe('done');
+    expect(again.pointsThisRun).toBe(4 * 5);
+    expect(pointRows(db)).toEqual(reference);
   });
 });

@@ -150,3 +150,22 @@ describe('plan', () => {
     expect(grown).toBeLessThan(32 * 1024 * 1024);
   });
 });
+
+describe('demo scenario', () => {
+  it('is a valid spec whose constraints compile, and every file says it is invented', async () => {
+    const { loadSpecFile } = await import('../../scheduler/spec.js');
+    const { compileSpecConstraints } = await import('../../scheduler/run.js');
+    const { DEMO_SPEC } = await import('../../scheduler/commands/demo.js');
+    const { readFileSync, readdirSync } = await import('node:fs');
+    const path = await import('node:path');
+    const spec = loadSpecFile(DEMO_SPEC);
+    const total = makePlan(spec, 1).total;
+    // "a few tens of thousands of points"
+    expect(total).toBeGreaterThanOrEqual(10_000);
+    expect(total).toBeLessThanOrEqual(60_000);
+    expect(compileSpecConstraints(spec, DEMO_SPEC)!.columns).toEqual(['relic', 'lumen_si', 'lumen_sd', 'vesper_events', 'corvid_sigv']);
+    const dir = path.dirname(DEMO_SPEC);
+    expect(readFileSync(path.join(dir, 'README.md'), 'utf8')).toMatch(/INVENTED/);
+    for (const f of readdirSync(path.join(dir, 'curves'))) expect(readFileSync(path.join(dir, 'curves', f), 'utf8'), f).toMatch(/^# INVENTED/);
+  });
+});

@@ -112,21 +112,28 @@ export interface Calibration {
   readonly errors: number;
 }
 
-/** Times real evaluations of points spread over the scan (after one warm-up point). */
-export async function calibrate(spec: ScanSpec, engine: PhysicsEngine, budgetMs = 600, maxPoints = 24): Promise<Calibration> {
+/**
+ * Times real evaluations: after a short warm-up (first-call compilation), blocks of consecutive ids
+ * spread over the scan, as chunks see them (per-scan caches fill as in a run), until the budget is
+ * spent. Cheap to call: about `budgetMs` of compute.
+ */
+export async function calibrate(spec: ScanSpec, engine: PhysicsEngine, budgetMs = 600, blocks = 6, blockSize = 8): Promise<Calibration> {
   const evaluator = await ChunkEvaluator.create(resolvedSpecJson(spec), engine);
   const total = evaluator.totalPoints;
-  const ids = Array.from({ length: Math.min(maxPoints, total) }, (_, k) => Math.floor(((k + 0.5) * total) / Math.min(maxPoints, total)));
-  evaluator.evaluate({ chunk: 0, firstId: ids[0]!, n: 1 });
+  const n = Math.min(blockSize, total);
+  evaluator.evaluate({ chunk: 0, firstId: 0, n: Math.min(3, total) });
   let points = 0;
   let errors = 0;
   let ms = 0;
-  for (const id of ids) {
-    const r = evaluator.evaluate({ chunk: 0, firstId: id, n: 1 });
-    ms += r.evalMs;
-    points++;
-    if (String(r.columns[r.columns.length - 1]![0]).includes('error=')) errors++;
-    if (ms > budgetMs) break;
+  for (let round = 0; ms < budgetMs && round < 8; round++) {
+    for (let b = 0; b < blocks && ms < budgetMs; b++) {
+      const first = Math.min(total - n, Math.floor(((b + (round + 0.5) / 8) * total) / blocks));
+      const r = evaluator.evaluate({ chunk: 0, firstId: first, n });
+      ms += r.evalMs;
+      points += n;
+      const flags = r.columns[r.columns.length - 1] as (string | null)[];
+      errors += flags.filter((f) => f?.startsWith('error=')).length;
+    }
   }
   return { points, msPerPoint: ms / points, errors };
 }

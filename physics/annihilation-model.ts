@@ -36,8 +36,8 @@ export interface Annihilation {
   /** s-channel poles at sqrt(s) > 2 m_chi, for splitting integrals (empty when the pole lies below threshold) */
   readonly poles: readonly Pole[];
   /**
-   * Optional: s-channel poles at 0 < sqrt(s) <= 2 m_chi (mediator just below or at twice the dark-matter
-   * mass). sigma(s) has no peak in the physical region, but its complex singularity at
+   * Optional: s-channel poles at 0 < sqrt(s) <= 2 m_chi (mediator at or below twice the dark-matter
+   * mass; it matters when close). sigma(s) has no peak in the physical region, but its complex singularity at
    * s = M^2 +- i M Gamma lies close to threshold, so sigma varies on the scale |2 m_chi - M| + Gamma/2
    * there; the thermal average refines its rule towards threshold when this is much smaller than T.
    * Absent or empty when there is none.

@@ -3,7 +3,8 @@
  * annihilation cross section sigma(s).
  *
  * Data flow: sigma(s) (physics/annihilation.ts) -> <sigma v>(x) tabulated on a coarse grid on
- * [tableXMin, tableXMax] (physics/relic/thermal-average.ts) -> starting guess for x_f (the standard
+ * [tableXMin, tableXMax] (physics/relic/thermal-average.ts; near poles and thresholds from sigma
+ * sampled once per point on a graded rule in sqrt(s), physics/relic/energy-grid.ts) -> starting guess for x_f (the standard
  * approximation, Kolb & Turner 1990 §5.2, relic.md eq. 3.1 with c = 1/2, reading the coarse
  * table) -> the table refined where its spline misses checked midpoints (tolerance weighted by
  * x_f / x, the weight of <sigma v>(x) in Omega) -> full Boltzmann solution with the analytic tail
@@ -77,7 +78,7 @@ export const RELIC_KNOBS: readonly KnobSpec[] = Object.freeze([
   {
     name: 'laguerreNodes', default: 12, min: 4, max: 64, integer: true,
     doc: 'nodes of the t^{1/2} e^{-t} Gauss-Laguerre rule for <sigma v>(x) when no pole or threshold lies in range',
-    why: 'the integrand over the weight is smooth (s-wave 1/beta absorbed by the weight); 12 nodes give ~1e-6 for x >= 10 (a pole just below threshold, which the Annihilation does not list, is the worst case: 2e-5 at x = 15)',
+    why: 'the integrand over the weight is smooth (s-wave 1/beta absorbed by the weight); 12 nodes give ~1e-6 for x >= 10; a listed pole below threshold closer than 10 in t hands the x over to graded pieces (12 nodes would be off by 2e-4 at distance 1)',
   },
   {
     name: 'tMax', default: 60, min: 30, max: 400, integer: false,

@@ -59,6 +59,8 @@ export interface WorkerHeartbeat {
   readonly host: string;
   readonly pid: number;
   readonly concurrency: number;
+  /** chunks it takes at once per scan (threads plus prefetch) */
+  readonly slots: number;
   readonly queues: readonly string[];
   readonly chunksDone: number;
   readonly startedAt: string;

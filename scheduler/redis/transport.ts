@@ -9,10 +9,13 @@
  *  - a result job is acknowledged (completed, hence removed) only when the scheduler asks for the
  *    next outcome or closes, i.e. after it has written the previous one to the ledger. A scheduler
  *    killed in between leaves the job active; its lock expires and the next run receives it again;
- *  - results for chunks this run did not dispatch (duplicates of stalled re-runs, or leftovers
- *    beyond `window`) are acknowledged and dropped: the ledger decides what is done, and an
- *    undispatched pending chunk simply runs again. With the default window every pending chunk is
- *    dispatched at once, so every leftover result of a previous run is ingested;
+ *  - the window (chunks queued and not yet delivered) follows the workers connected: twice their
+ *    slots plus a few, so every worker always finds a chunk waiting, a first SIGINT finishes
+ *    quickly, and a killed run leaves little behind;
+ *  - results for chunks this run has not dispatched (duplicates of stalled re-runs, or leftovers of
+ *    a killed run beyond this run's window) are acknowledged and dropped: the ledger decides what is
+ *    done, and a pending chunk simply runs again. Both runs dispatch pending chunks in id order, so
+ *    the leftovers of a killed run are mostly the chunks the next run dispatches first;
  *  - a chunk whose job failed every attempt (or stalled too often) is reported once as failed and
  *    its job removed, so the next run starts it afresh.
  * Redis restarts: a poll every `pollMs` compares the server's run_id and checks the scan's
@@ -40,7 +43,7 @@ export interface RedisTransportOptions {
   readonly ledgerTag: string;
   /** the scheduler's code version, announced to workers */
   readonly codeVersion: string;
-  /** chunks kept queued at once; default 50000 (every pending chunk of all but huge scans) */
+  /** most chunks kept queued at once, whatever the workers; default 50000 */
   readonly window?: number;
   /** attempts per chunk before it is reported failed; default 3 */
   readonly attempts?: number;
@@ -68,7 +71,6 @@ const ADD_BATCH = 1000;
 
 export class RedisTransport implements Transport {
   readonly description: string;
-  readonly window: number;
   private readonly opts: Required<Omit<RedisTransportOptions, 'log'>>;
   private readonly log: (line: string) => void;
   private readonly connection: ConnectionOptions;
@@ -89,6 +91,7 @@ export class RedisTransport implements Transport {
   private polling = false;
   private runId = '';
   private lastWorkerSeen = Date.now();
+  private liveSlots = 0;
   private hinted = false;
   private closed = false;
   private lastError = '';
@@ -100,8 +103,12 @@ export class RedisTransport implements Transport {
     };
     this.log = options.log ?? ((line) => process.stderr.write(`${line}\n`));
     this.connection = bullConnection(redisOptionsFromUrl(options.url));
-    this.window = this.opts.window;
     this.description = `Redis ${redactRedisUrl(options.url)} (prefix ${options.prefix})`;
+  }
+
+  /** Chunks to keep queued: twice the live workers' slots plus 4, at least 8 (read by the scheduler before each dispatch). */
+  get window(): number {
+    return Math.min(this.opts.window, Math.max(8, 2 * this.liveSlots + 4));
   }
 
   /** The work queue's name (after open). */
@@ -138,6 +145,7 @@ export class RedisTransport implements Transport {
     await this.queue.resume();
     await this.queue.clean(0, 0, 'failed');
     await this.announce();
+    await this.watchWorkers(this.client);
     const resultsQueue = resultQueueName(this.queueName);
     // results stay unacknowledged until written, so results jobs must never fail for stalling
     this.results = new Worker<ResultJobData>(resultsQueue, (job) => this.receive(job), {
@@ -292,7 +300,7 @@ export class RedisTransport implements Transport {
         await job.remove();
         this.deliver({ kind: 'failed', range, attempts: job.attemptsMade, error: job.failedReason || 'failed with no reason given' }, () => {});
       }
-      await this.hintIfNoWorker(client);
+      await this.watchWorkers(client);
     } catch (err) {
       this.noteError(err as Error);
     } finally {
@@ -316,9 +324,12 @@ export class RedisTransport implements Transport {
     await this.adding;
   }
 
-  private async hintIfNoWorker(client: Redis): Promise<void> {
-    if (this.hinted || this.outstanding.size === 0) return;
-    if ((await liveWorkers(client, this.opts.prefix)).length > 0) this.lastWorkerSeen = Date.now();
+  /** Sizes the window from the workers' heartbeats; prints a hint once when none has come for a while. */
+  private async watchWorkers(client: Redis): Promise<void> {
+    const workers = await liveWorkers(client, this.opts.prefix);
+    this.liveSlots = workers.reduce((sum, w) => sum + (w.slots ?? w.concurrency), 0);
+    if (workers.length > 0) this.lastWorkerSeen = Date.now();
+    else if (this.hinted || this.outstanding.size === 0) return;
     else if (Date.now() - this.lastWorkerSeen > this.opts.noWorkerHintS * 1000) {
       this.hinted = true;
       this.log(`no darksieve worker has reported to ${redactRedisUrl(this.opts.url)} for ${this.opts.noWorkerHintS} s; start one with: darksieve worker --redis <URL>`);

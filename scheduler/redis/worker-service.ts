@@ -202,7 +202,7 @@ export class WorkerService {
   private async heartbeat(): Promise<void> {
     if (this.closed) return;
     const hb: WorkerHeartbeat = {
-      id: this.id, host: hostname(), pid: process.pid, concurrency: this.o.concurrency, queues: this.serving,
+      id: this.id, host: hostname(), pid: process.pid, concurrency: this.o.concurrency, slots: this.o.concurrency + this.o.prefetch, queues: this.serving,
       chunksDone: this.chunksDone, startedAt: this.startedAt, codeVersion: this.o.codeVersion,
     };
     const ttl = 3 * this.o.heartbeatMs;

@@ -42,9 +42,16 @@ describe('darksieve run through the CLI', () => {
   it('status --json while the run writes; SIGINT then finishes the chunks in flight, says how to resume, and the resumed scan is identical', async () => {
     const db = path.join(tmp.dir, 'sigint.db');
     let status: { code: number | null; json: { scans: Record<string, unknown>[] } } | null = null;
-    const r = await killTrial(specFile, db, 5, 'SIGINT', async () => {
-      const st = await runCli(['status', db, '--json']);
-      status = { code: st.code, json: JSON.parse(st.stdout) as { scans: Record<string, unknown>[] } };
+    // the run is paused (SIGSTOP) mid-scan with the ledger open for writing while status reads it,
+    // so the reading happens during the run however slow the status command starts
+    const r = await killTrial(specFile, db, 5, 'SIGINT', async (child) => {
+      child.kill('SIGSTOP');
+      try {
+        const st = await runCli(['status', db, '--json']);
+        status = { code: st.code, json: JSON.parse(st.stdout) as { scans: Record<string, unknown>[] } };
+      } finally {
+        child.kill('SIGCONT');
+      }
     });
     expect(status).not.toBeNull();
     const seen = status!;

@@ -8,6 +8,7 @@
  * which prints one line per trial and exits 1 on any mismatch.
  */
 import Database from 'better-sqlite3';
+import type { ChildProcess } from 'node:child_process';
 import { existsSync } from 'node:fs';
 import path from 'node:path';
 import { runScan, type RunSummary } from '../../scheduler/run.js';
@@ -63,7 +64,7 @@ export interface TrialResult {
  * (0: as soon as the scan exists), then resumes in-process with 2 workers.
  */
 export async function killTrial(
-  specFile: string, dbFile: string, afterChunks: number, signal: 'SIGKILL' | 'SIGINT', beforeSignal?: () => Promise<void>,
+  specFile: string, dbFile: string, afterChunks: number, signal: 'SIGKILL' | 'SIGINT', beforeSignal?: (child: ChildProcess) => Promise<void>,
 ): Promise<TrialResult> {
   let killedAfterChunks: number | null = null;
   let signalling = false;
@@ -77,7 +78,7 @@ export async function killTrial(
         if (done >= afterChunks) {
           signalling = true;
           clearInterval(poll);
-          void (beforeSignal ?? (async () => {}))().finally(() => {
+          void (beforeSignal ?? (async () => {}))(child).finally(() => {
             killedAfterChunks = doneChunks(dbFile);
             child.kill(signal);
           });

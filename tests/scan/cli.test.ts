@@ -5,22 +5,22 @@
  * while a run writes, bad input exits 2 naming the field and leaves the ledger unchanged, `check`.
  * CLI start-up dominates the time of this file, so each spawned run is made to count.
  */
-import { readFileSync, writeFileSync } from 'node:fs';
+import { readFileSync, readdirSync, writeFileSync } from 'node:fs';
 import path from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { TRIAL_CHUNKS, TRIAL_POINTS, TRIAL_SPEC, killMoments, killTrial, referenceRows } from './kill-trials.js';
+import { TRIAL_CHUNKS, TRIAL_POINTS, TRIAL_SPEC, killMoments, killTrial, referenceRows, stableTrial, type Reference } from './kill-trials.js';
 import { query, runCli, tempDir, writeSpec } from './helpers.js';
 import { baseSpec } from './malformed-specs.js';
 
 let tmp: ReturnType<typeof tempDir>;
 let specFile: string;
-let reference: string[][];
+let reference: Reference;
 
 beforeAll(async () => {
   tmp = tempDir();
   specFile = writeSpec(tmp.dir, 'trial.json', TRIAL_SPEC);
   reference = await referenceRows(specFile, tmp.dir);
-  expect(reference.length).toBe(TRIAL_POINTS);
+  expect(reference.rows.length).toBe(TRIAL_POINTS);
 });
 afterAll(() => tmp.cleanup());
 
@@ -28,46 +28,53 @@ describe('darksieve run through the CLI', () => {
   it('SIGKILL at two moments, then resume: rows equal the uninterrupted run bit for bit', async () => {
     for (const [i, k] of killMoments(2, 20261202).entries()) {
       const db = path.join(tmp.dir, `kill-${i}.db`);
-      const r = await killTrial(specFile, db, k, 'SIGKILL');
+      let attempt = 0;
+      const run = await stableTrial(specFile, tmp.dir, reference, () => killTrial(specFile, `${db}.${attempt++}`, k, 'SIGKILL'));
+      reference = run.reference;
+      const r = run.result;
       const at = `trial ${i}, killed after ${r.killedAfterChunks} chunks (target ${k})`;
       expect(r.cli.signal, `${at}: ${r.cli.stderr}`).toBe('SIGKILL');
       expect(r.resumed.status, at).toBe('done');
       expect(r.resumed.pointsThisRun, at).toBeLessThanOrEqual(TRIAL_POINTS - 20 * Math.max(0, r.killedAfterChunks ?? 0));
-      expect(r.rows, at).toEqual(reference);
-      const integrity = query<{ integrity_check: string }>(db, 'PRAGMA integrity_check');
+      expect(r.rows, at).toEqual(reference.rows);
+      const integrity = query<{ integrity_check: string }>(`${db}.${attempt - 1}`, 'PRAGMA integrity_check');
       expect(integrity[0]!.integrity_check, at).toBe('ok');
     }
   });
 
   it('status --json while the run writes; SIGINT then finishes the chunks in flight, says how to resume, and the resumed scan is identical', async () => {
     const db = path.join(tmp.dir, 'sigint.db');
-    let status: { code: number | null; json: { scans: Record<string, unknown>[] } } | null = null;
+    let status: { code: number | null; json: { scans: Record<string, unknown>[] }; stderr: string } | null = null;
     // the run is paused (SIGSTOP) mid-scan with the ledger open for writing while status reads it,
     // so the reading happens during the run however slow the status command starts
-    const r = await killTrial(specFile, db, 5, 'SIGINT', async (child) => {
+    let attempt = 0;
+    const run = await stableTrial(specFile, tmp.dir, reference, () => killTrial(specFile, `${db}.${attempt++}`, 5, 'SIGINT', async (child) => {
       child.kill('SIGSTOP');
       try {
-        const st = await runCli(['status', db, '--json']);
-        status = { code: st.code, json: JSON.parse(st.stdout) as { scans: Record<string, unknown>[] } };
+        const st = await runCli(['status', `${db}.${attempt - 1}`, '--json']);
+        status = { code: st.code, json: st.code === 0 ? (JSON.parse(st.stdout) as { scans: Record<string, unknown>[] }) : { scans: [] }, stderr: st.stderr };
       } finally {
         child.kill('SIGCONT');
       }
-    });
+    }));
+    reference = run.reference;
+    const r = run.result;
+    const used = `${db}.${attempt - 1}`;
     expect(status).not.toBeNull();
     const seen = status!;
-    expect(seen.code).toBe(0);
+    expect(seen.code, seen.stderr).toBe(0);
     const scan = seen.json.scans[0]!;
     expect(scan).toMatchObject({ id: 1, name: 'trial', status: 'running', points_total: TRIAL_POINTS, chunks_total: TRIAL_CHUNKS });
     expect(scan.points_done as number).toBeGreaterThanOrEqual(5 * 20);
     expect(r.killedAfterChunks).not.toBeNull();
     expect(r.cli.code, r.cli.stderr).toBe(1);
     expect(r.cli.stdout).toMatch(/interrupted/);
-    expect(r.cli.stdout).toContain(`resume with: darksieve run ${specFile} --db ${db} --workers 2`);
-    expect(r.rows).toEqual(reference);
+    expect(r.cli.stdout).toContain(`resume with: darksieve run ${specFile} --db ${used} --workers 2`);
+    expect(r.rows).toEqual(reference.rows);
   });
 
   it('bad input exits 2 naming every field and leaves an existing ledger byte for byte', async () => {
-    const db = path.join(tmp.dir, 'reference.db');
+    const db = path.join(tmp.dir, readdirSync(tmp.dir).find((f) => /^reference-.*\.db$/.test(f))!);
     const before = readFileSync(db);
     const bad = baseSpec();
     bad.name = 'trial';

@@ -3,16 +3,21 @@
  * SIGKILL (or interrupted with SIGINT) after a chosen number of chunks, the scan is resumed, and the
  * ledger must equal an uninterrupted run row for row and bit for bit.
  *
+ * The physics sources are fingerprinted around every trial: a trial during which they changed (other
+ * people edit physics/ in this shared tree) compares results of two codes, so it is repeated against
+ * a fresh reference instead of being counted.
+ *
  * The test (cli.test.ts) runs a few trials; for more, run
  *   node bin/run-ts.mjs tests/scan/kill-trials.ts [TRIALS] [SEED]
  * which prints one line per trial and exits 1 on any mismatch.
  */
 import Database from 'better-sqlite3';
 import type { ChildProcess } from 'node:child_process';
-import { existsSync } from 'node:fs';
+import { createHash } from 'node:crypto';
+import { existsSync, readFileSync, readdirSync } from 'node:fs';
 import path from 'node:path';
 import { runScan, type RunSummary } from '../../scheduler/run.js';
-import { pointRows, runCli, tempDir, writeSpec, type CliResult } from './helpers.js';
+import { REPO, pointRows, runCli, tempDir, writeSpec, type CliResult } from './helpers.js';
 
 /** 2 x 40 x 40 = 3200 points of real physics, no detectors or targets (fast), chunks of 20. */
 export const TRIAL_SPEC = {
@@ -30,11 +35,42 @@ export const TRIAL_CHUNKS = 160;
 
 const quietLog = (): void => {};
 
+/** sha256 over every physics/ source, to notice edits made while a trial runs. */
+export function physicsFingerprint(): string {
+  const hash = createHash('sha256');
+  const files = (readdirSync(path.join(REPO, 'physics'), { recursive: true }) as string[]).filter((f) => f.endsWith('.ts')).sort();
+  for (const f of files) hash.update(f).update(readFileSync(path.join(REPO, 'physics', f)));
+  return hash.digest('hex');
+}
+
+export interface Reference {
+  readonly rows: string[][];
+  readonly fingerprint: string;
+}
+
+/**
+ * Runs `trial` against `reference`, refreshing the reference and repeating the trial (up to 3 times)
+ * when the physics sources change around it.
+ */
+export async function stableTrial(
+  specFile: string, dir: string, reference: Reference, trial: () => Promise<TrialResult>,
+): Promise<{ result: TrialResult; reference: Reference; repeats: number }> {
+  for (let repeats = 0; ; repeats++) {
+    if (physicsFingerprint() !== reference.fingerprint) reference = await referenceRows(specFile, dir);
+    const result = await trial();
+    if (physicsFingerprint() === reference.fingerprint || repeats >= 2) return { result, reference, repeats };
+  }
+}
+
 /** Rows of an uninterrupted run (in-process, 1 worker, another chunk size than the trials). */
-export async function referenceRows(specFile: string, dir: string): Promise<string[][]> {
-  const db = path.join(dir, 'reference.db');
-  await runScan({ specPath: specFile, dbPath: db, workers: 1, chunkSize: 450, quiet: true, log: quietLog });
-  return pointRows(db);
+export async function referenceRows(specFile: string, dir: string): Promise<Reference> {
+  for (;;) {
+    const fingerprint = physicsFingerprint();
+    const db = path.join(dir, `reference-${fingerprint.slice(0, 12)}.db`);
+    await runScan({ specPath: specFile, dbPath: db, workers: 1, chunkSize: 450, quiet: true, log: quietLog, newScan: true });
+    const rows = pointRows(db, 1);
+    if (physicsFingerprint() === fingerprint) return { rows, fingerprint };
+  }
 }
 
 function doneChunks(dbFile: string): number {
@@ -112,15 +148,18 @@ async function main(): Promise<void> {
   let failures = 0;
   try {
     const specFile = writeSpec(tmp.dir, 'trial.json', TRIAL_SPEC);
-    const reference = await referenceRows(specFile, tmp.dir);
+    let reference = await referenceRows(specFile, tmp.dir);
     for (const [i, k] of killMoments(trials, seed).entries()) {
       const signal = i % 4 === 3 ? 'SIGINT' : 'SIGKILL';
-      const r = await killTrial(specFile, path.join(tmp.dir, `trial-${i}.db`), k, signal);
-      const same = JSON.stringify(r.rows) === JSON.stringify(reference);
+      const run = await stableTrial(specFile, tmp.dir, reference, () => killTrial(specFile, path.join(tmp.dir, `trial-${i}-${Date.now()}.db`), k, signal));
+      reference = run.reference;
+      const r = run.result;
+      const same = JSON.stringify(r.rows) === JSON.stringify(reference.rows);
       if (!same) failures++;
       process.stdout.write(
         `trial ${i}: ${signal} after ${r.killedAfterChunks ?? 'completion'} chunks (target ${k}), exit ${r.cli.code ?? r.cli.signal}, ` +
-          `resumed ${r.resumed.pointsThisRun} points: ${same ? 'identical' : 'MISMATCH'}\n`,
+          `resumed ${r.resumed.pointsThisRun} points: ${same ? 'identical' : 'MISMATCH'}` +
+          `${run.repeats > 0 ? ` (repeated ${run.repeats}x: physics sources changed during the trial)` : ''}\n`,
       );
     }
   } finally {

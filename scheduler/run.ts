@@ -307,7 +307,14 @@ export async function runScan(options: RunOptions): Promise<RunSummary> {
       }
     }
 
-    await transport.open({ scanKey: `s${scan.id}-${hash.slice(0, 12)}`, resolvedSpecJson: resolved, observableNames: prepared.observableNames });
+    try {
+      await transport.open({ scanKey: `s${scan.id}-${hash.slice(0, 12)}`, resolvedSpecJson: resolved, observableNames: prepared.observableNames });
+    } catch (err) {
+      // the scan row stays (a rerun resumes it) but must not claim to be running
+      ledger.setStatus(scan.id, 'interrupted');
+      await transport.close();
+      throw err;
+    }
     const computeStarted = performance.now();
     progress = createProgress(progressMode(options.quiet ?? false));
     progress.start(plan.total, before.pointsDone);

@@ -279,6 +279,12 @@ function unknownParam(name: string, path: string): Issue {
   return { code: 'unknown_parameter', path, message: `unknown parameter '${name}'`, seen: name, allowed: PARAM_LIST };
 }
 
+/** Records the shape issues of an axis; the axis is then unusable. */
+function shapeIssues(error: z.ZodError, base: readonly PropertyKey[], issues: Issue[]): null {
+  issues.push(...issuesFromZod(error, base));
+  return null;
+}
+
 function resolveAxis(param: string, raw: unknown, sampling: Sampling, issues: Issue[]): Axis | null {
   const base = ['axes', param];
   const p = PARAM_BY_NAME.get(param);
@@ -296,7 +302,7 @@ function resolveAxis(param: string, raw: unknown, sampling: Sampling, issues: Is
   const obj = raw as Record<string, unknown>;
   if ('equals' in obj) {
     const r = equalsAxisSchema.safeParse(obj, { reportInput: true });
-    if (!r.success) return void issues.push(...issuesFromZod(r.error, base)), null;
+    if (!r.success) return shapeIssues(r.error, base, issues);
     if (p.kind === 'enum') {
       issues.push({ code: 'invalid', path: formatPath([...base, 'equals']), message: `${param} is a choice; it cannot be computed`, seen: seenText(obj.equals), allowed: '{values: [...]} or a fixed model value' });
       return null;
@@ -305,7 +311,7 @@ function resolveAxis(param: string, raw: unknown, sampling: Sampling, issues: Is
   }
   if ('values' in obj) {
     const r = valuesAxisSchema.safeParse(obj, { reportInput: true });
-    if (!r.success) return void issues.push(...issuesFromZod(r.error, base)), null;
+    if (!r.success) return shapeIssues(r.error, base, issues);
     const before = issues.length;
     r.data.values.forEach((v, i) => {
       const issue = checkParamValue(p, v, formatPath([...base, 'values', i]));
@@ -314,7 +320,7 @@ function resolveAxis(param: string, raw: unknown, sampling: Sampling, issues: Is
     return issues.length === before ? { kind: 'values', param, values: r.data.values } : null;
   }
   const r = rangeAxisSchema.safeParse(obj, { reportInput: true });
-  if (!r.success) return void issues.push(...issuesFromZod(r.error, base)), null;
+  if (!r.success) return shapeIssues(r.error, base, issues);
   const a = r.data;
   const before = issues.length;
   if (p.kind === 'enum') {

@@ -262,7 +262,8 @@ export async function runScan(options: RunOptions): Promise<RunSummary> {
   } else if (options.chunkSize !== undefined) {
     chunkSize = options.chunkSize;
   } else {
-    const cal = await calibrate(spec, engine);
+    // a short calibration: the chunk size only needs the order of magnitude of the cost per point
+    const cal = await calibrate(spec, engine, 200);
     chunkSize = chooseChunkSize(cal.msPerPoint, makePlan(spec, 1).total, workers);
   }
   const plan = makePlan(spec, chunkSize);

@@ -20,14 +20,14 @@ import { PARAMETER_COLUMNS } from '../../scheduler/plan.js';
 import { numericObservableNames } from '../../physics/observables.js';
 import { CONSTANTS_EDITION } from '../../physics/constants.js';
 
-/** The demo's physics setup on a smaller grid: 2 x 80 x 80 = 12800 points. */
+/** The demo's physics setup on a smaller grid: 2 x 120 x 120 = 28800 points. */
 export const BENCH_SPEC = {
   name: 'bench',
   model: { dm: 'dirac', g_chi: 1, g_q: 0.25 },
   axes: {
     mediator: { values: ['vector', 'axial'] },
-    m_chi: { from: 5, to: 5000, steps: 80, spacing: 'log' },
-    m_med: { from: 10, to: 10000, steps: 80, spacing: 'log' },
+    m_chi: { from: 5, to: 5000, steps: 120, spacing: 'log' },
+    m_med: { from: 10, to: 10000, steps: 120, spacing: 'log' },
   },
   detectors: [{ name: 'xe_bench', target: 'Xe', windowKeV: [5, 40], efficiency: 0.6, exposureKgDay: 1e6 }],
   targets: [{ name: 'gc', kind: 'galactic_centre', coneDeg: 1, energyGeV: [1, 100] }],

@@ -4,7 +4,7 @@
  * Points: a mixed set of toy cross sections (constant s-wave, p-wave, s+p, Breit-Wigner poles just
  * above and below 2m (0.5% below: listed in subthresholdPoles), narrow pole, a channel opening above threshold, masses 1 GeV-10 TeV), plus
  * real simplified-model points from physics/annihilation.ts (scalar, pseudoscalar, vector, axial;
- * on and off resonance, top threshold). Speed: relicAbundance calls per CPU second (process.cpuUsage), each
+ * on and off resonance, top threshold) and eight points of the point-bench grid (gridPoints). Speed: relicAbundance calls per CPU second (process.cpuUsage), each
  * call including its own thermal-average table. Accuracy: max relative deviation of Omega h^2 from
  * the same code at much tighter knobs.
  */
@@ -64,8 +64,34 @@ function realPoints(): BenchPoint[] {
   });
 }
 
+/**
+ * Points of the point-bench grid (tests/bench/point-bench.ts: g_chi = 1, g_q = 0.25, m_chi = 10 10^(i/4),
+ * m_med = 20 10^(j/4)) from the kinds that carry its relic time: relativistic freeze-out with a heavy
+ * mediator, mediators within 0.05% of 2 m_chi (above, at and below), open mediator-pair channels and
+ * the top threshold just above 2 m_chi.
+ */
+function gridPoints(): BenchPoint[] {
+  const mChi = (i: number): number => 10 * 10 ** (i / 4);
+  const mMed = (j: number): number => 20 * 10 ** (j / 4);
+  const specs: [ModelPoint['mediator'], number, number, DmKind][] = [
+    ['scalar', 1, 10, 'dirac'], // m 17.8, M 6325: x_f ~ 2.6
+    ['vector', 5, 5, 'dirac'], // m 177.8, M 355.7 = 2.0005 m
+    ['pseudoscalar', 6, 6, 'majorana'], // m 316.2, M 632.5 = 2.0003 m
+    ['axial', 8, 8, 'majorana'], // m 1000, M 2000 = 2 m
+    ['vector', 7, 4, 'dirac'], // m 562.3, M 200: vector pair channel
+    ['scalar', 4, 2, 'majorana'], // m 100, M 63.2: scalar pair channel
+    ['axial', 3, 1, 'dirac'], // m 56.2, M 35.6: axial pair channel (longitudinal modes)
+    ['scalar', 4, 7, 'dirac'], // m 100, M 1125: top threshold at t = 1.45 x
+  ];
+  return specs.map(([mediator, i, j, dm]) => {
+    const point: ModelPoint = { dm, mediator, m_chi: mChi(i), m_med: mMed(j), g_chi: 1, g_q: 0.25, g_l: 0, width_med: null };
+    const width = mediatorWidth(point).totalGeV;
+    return { name: `grid ${mediator} ${dm} m=${point.m_chi.toPrecision(4)} M=${point.m_med.toPrecision(4)}`, ann: buildAnnihilation(point, width), dm };
+  });
+}
+
 export async function benchRelic(): Promise<{ pointsPerSecond: number; maxRelError: number; lines: string[] }> {
-  const points = [...toyPoints(), ...realPoints()];
+  const points = [...toyPoints(), ...realPoints(), ...gridPoints()];
   const lines: string[] = [];
   let maxRelError = 0;
   for (const p of points) {
@@ -101,7 +127,7 @@ export async function benchRelic(): Promise<{ pointsPerSecond: number; maxRelErr
   const toys = toyPoints();
   lines.unshift(
     `relic: ${points.length} mixed points, ${pointsPerSecond.toFixed(0)} points/s per core (CPU time; wall ${(1 / all.wall).toFixed(0)}), max |Omega/Omega_tight - 1| = ${maxRelError.toExponential(2)}`,
-    `  per point (CPU): s-wave ${perKind(toys.slice(0, 5)).toFixed(0)} us, p-wave ${perKind(toys.slice(5, 8)).toFixed(0)} us, poles/threshold ${perKind(toys.slice(9)).toFixed(0)} us, real models ${perKind(realPoints()).toFixed(0)} us`,
+    `  per point (CPU): s-wave ${perKind(toys.slice(0, 5)).toFixed(0)} us, p-wave ${perKind(toys.slice(5, 8)).toFixed(0)} us, poles/threshold ${perKind(toys.slice(9)).toFixed(0)} us, real models ${perKind(realPoints()).toFixed(0)} us, grid models ${perKind(gridPoints()).toFixed(0)} us`,
   );
   return { pointsPerSecond, maxRelError, lines };
 }

@@ -21,7 +21,8 @@
  * A missing value (NULL in the ledger) is passed as NaN: every comparison with NaN is false, so a cut
  * on a missing value is not satisfied; `isNaN(x)` tests for it.
  */
-import { all, create, type MathNode } from 'mathjs';
+import { createRequire } from 'node:module';
+import type { MathNode, MathJsInstance } from 'mathjs';
 import type { Issue } from '../physics/issue.js';
 
 /** Values an expression can see: parameter and observable values by name. */
@@ -53,27 +54,37 @@ export const MAX_EXPRESSION_LENGTH = 2000;
 /** Deepest accepted tree, so hostile nesting cannot exhaust the stack during checks or evaluation. */
 export const MAX_EXPRESSION_DEPTH = 64;
 
-const math = create(all!, { absTol: 0, relTol: Number.MIN_VALUE, predictable: true, number: 'number' });
-const privateParse = math.parse;
+/**
+ * The sandboxed parser, built on first use: loading mathjs costs about a second of CPU, which every
+ * command that reads a spec would otherwise pay even when the spec holds no expression. It is loaded
+ * through require (mathjs ships a CommonJS build) so compileExpression can stay synchronous.
+ */
+let sandboxParse: ((text: string) => MathNode) | undefined;
 
-function refuse(name: string): () => never {
-  return () => {
+function parser(): (text: string) => MathNode {
+  if (sandboxParse) return sandboxParse;
+  const { all, create } = createRequire(import.meta.url)('mathjs') as typeof import('mathjs');
+  const math: MathJsInstance = create(all!, { absTol: 0, relTol: Number.MIN_VALUE, predictable: true, number: 'number' });
+  const privateParse = math.parse;
+  const refuse = (name: string) => (): never => {
     throw new Error(`${name} is disabled in darksieve expressions`);
   };
+  math.import(
+    {
+      import: refuse('import'),
+      createUnit: refuse('createUnit'),
+      reviver: refuse('reviver'),
+      evaluate: refuse('evaluate'),
+      parse: refuse('parse'),
+      simplify: refuse('simplify'),
+      derivative: refuse('derivative'),
+      resolve: refuse('resolve'),
+    },
+    { override: true },
+  );
+  sandboxParse = (text: string) => privateParse(text);
+  return sandboxParse;
 }
-math.import(
-  {
-    import: refuse('import'),
-    createUnit: refuse('createUnit'),
-    reviver: refuse('reviver'),
-    evaluate: refuse('evaluate'),
-    parse: refuse('parse'),
-    simplify: refuse('simplify'),
-    derivative: refuse('derivative'),
-    resolve: refuse('resolve'),
-  },
-  { override: true },
-);
 
 /** Allowed functions with their accepted argument counts [min, max]. */
 const FUNCTIONS: Readonly<Record<string, readonly [number, number]>> = Object.freeze({
@@ -220,7 +231,7 @@ export function compileExpression(
   }
   let tree: MathNode;
   try {
-    tree = privateParse(text);
+    tree = parser()(text);
   } catch (err) {
     const message = err instanceof Error ? err.message : String(err);
     issues.push({ code: 'expression_syntax', path, message: `cannot parse expression '${text}': ${message}`, seen: text, allowed: ALLOWED_TEXT });

@@ -36,6 +36,10 @@ export const BASE = Object.freeze({
   atomicMassUnit: c(0.93149410242, 'GeV', 'CODATA 2018'),
   protonMass: c(0.93827208816, 'GeV', 'CODATA 2018'),
   neutronMass: c(0.93956542052, 'GeV', 'CODATA 2018'),
+  /** Neutral-pion mass: the photon-yield fits are cut below E = m_pi0 / 2. */
+  pi0Mass: c(0.1349768, 'GeV', 'PDG 2024, pi0 summary table: 134.9768 MeV'),
+  /** Fine-structure constant at zero momentum transfer (final-state radiation). */
+  alphaEm: c(1 / 137.035999084, '1', 'CODATA 2018: 1/alpha = 137.035999084'),
   solarMass: c(1.98841e30, 'kg', 'IAU 2015 Resolution B3 nominal GM_sun / CODATA 2018 G'),
   cmbTemperature: c(2.7255, 'K', 'Fixsen 2009, ApJ 707, 916'),
   hubble100: c(100, 'km s^-1 Mpc^-1', 'definition of h'),
@@ -103,6 +107,12 @@ export const GEV2_TO_CM3S: number = GEV2_TO_CM2 * BASE.speedOfLight.value;
 
 /** Speed of light in km/s. */
 export const C_KM_S: number = BASE.speedOfLight.value / 1e5;
+
+/** Neutral-pion mass in GeV. */
+export const PI0_MASS_GEV: number = BASE.pi0Mass.value;
+
+/** Fine-structure constant alpha_em. */
+export const ALPHA_EM: number = BASE.alphaEm.value;
 
 /** GeV per solar mass. */
 export const SOLAR_MASS_GEV: number = BASE.solarMass.value * GeV_PER_KG;

@@ -28,15 +28,9 @@
  * Accuracy: the closed forms are exact; band integrals are done in ln x by the adaptive quadrature of
  * physics/numerics to a relative tolerance of YIELD_REL_TOL.
  */
-import { LEPTONS, QUARKS } from '../constants.js';
+import { ALPHA_EM, LEPTONS, PI0_MASS_GEV, QUARKS } from '../constants.js';
 import type { Issue } from '../issue.js';
 import { integrate } from '../numerics/quadrature.js';
-
-/** Neutral-pion mass, GeV (PDG 2024, pi0 summary table: 134.9768 MeV). */
-export const PI0_MASS_GEV = 0.1349768;
-
-/** Fine-structure constant alpha_em (CODATA 2018: 1/137.035999084). */
-export const ALPHA_EM = 1 / 137.035999084;
 
 /** Relative tolerance of the band integrals of the yields (numerical knob). */
 export const YIELD_REL_TOL = 1e-8;

@@ -7,8 +7,9 @@ import { describe, expect, it } from 'vitest';
 import fx from '../fixtures/indirect/yields.json' with { type: 'json' };
 import {
   bandCount, cascadeBandCount, cascadeYield, checkYieldTables, energySum, fsrYield, hadronicYield,
-  PI0_MASS_GEV, spectrumBreaks, spectrumOf, tableSpectrum, tauYield, yieldSourceFor,
+  spectrumBreaks, spectrumOf, tableSpectrum, tauYield, yieldSourceFor,
 } from '../../physics/indirect/yields.js';
+import { PI0_MASS_GEV } from '../../physics/constants.js';
 
 function close(label: string, got: number, expected: number, relTol: number): void {
   const diff = Math.abs(got - expected) / Math.abs(expected);

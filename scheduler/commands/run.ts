@@ -18,11 +18,20 @@ export interface RunCommandOptions {
 
 const optionalInt = (text: string | undefined): number | undefined => (text === undefined ? undefined : Number(text));
 
+/**
+ * A module URL standing in for physics/evaluate.ts, for tests of the scheduling mechanics through the
+ * real CLI (signals, resume). Such a module's prepare() gives its own knobs, so a ledger made with it
+ * is never resumed with the real physics (knobs_changed) and vice versa.
+ */
+export const PHYSICS_MODULE_ENV = 'DARKSIEVE_PHYSICS_MODULE';
+
 /** Runs a spec with CLI options and prints the summary; shared by `run` and `demo`. */
 export async function runAndReport(specPath: string, opts: RunCommandOptions): Promise<RunSummary> {
+  const physicsModule = process.env[PHYSICS_MODULE_ENV] || undefined;
+  if (physicsModule) process.stderr.write(`note: physics replaced by ${physicsModule} (${PHYSICS_MODULE_ENV}; for tests of the scan mechanics)\n`);
   const summary = await runScan({
     specPath, dbPath: opts.db, workers: optionalInt(opts.workers), chunkSize: optionalInt(opts.chunk),
-    quiet: opts.quiet ?? false, newScan: opts.new ?? false, handleSignals: true, redisUrl: opts.redis,
+    quiet: opts.quiet ?? false, newScan: opts.new ?? false, handleSignals: true, redisUrl: opts.redis, physicsModule,
   });
   const out = describeRun(summary);
   process.stdout.write(`${out.join('\n')}\n`);

@@ -55,7 +55,7 @@
  * tests/bench/relic-bench.ts.
  */
 import type { Annihilation } from '../annihilation-model.js';
-import { besselK1Scaled, besselK2Scaled } from '../numerics/bessel.js';
+import { ASYMPTOTIC_Z_MIN, besselK1Scaled, besselK2Scaled, LARGE_Z_MIN, sqrtZK1ScaledAsymptotic, sqrtZK1ScaledOfInverse } from '../numerics/bessel.js';
 import { gaussLaguerre, integrate, type GaussRule } from '../numerics/quadrature.js';
 import { buildEnergyGrid, gridThermalAverage, poleInDelta, type EnergyGrid } from './energy-grid.js';
 
@@ -158,6 +158,9 @@ function laguerreRuleSum(ann: Annihilation, x: number, rule: GaussRule): number 
   const n = rule.nodes.length;
   const m = ann.mChiGeV;
   const invX = 1 / x;
+  // every node has z = 2x + t >= 2x: the cheapest form of sqrt(z) K~_1(z) valid there (as in
+  // physics/relic/energy-grid.ts), K~_1(z) sqrt(t) = sqrt(z) K~_1(z) sqrt(t/z)
+  const form = 2 * x >= ASYMPTOTIC_Z_MIN ? 2 : 2 * x >= LARGE_Z_MIN ? 1 : 0;
   let sum = 0;
   for (let i = 0; i < n; i++) {
     const t = rule.nodes[i]!;
@@ -165,8 +168,12 @@ function laguerreRuleSum(ann: Annihilation, x: number, rule: GaussRule): number 
     const s = 4 * m * m * (1 + r) * (1 + r);
     const sigma = ann.sigmaTotalGeV2(s);
     if (sigma === 0) continue;
+    const u = 1 / (2 * x + t);
+    const k1SqrtT = form === 2
+      ? sqrtZK1ScaledAsymptotic(u) * Math.sqrt(t * u)
+      : form === 1 ? sqrtZK1ScaledOfInverse(u) * Math.sqrt(t * u) : besselK1Scaled(2 * x + t) * Math.sqrt(t);
     // F / (sqrt(t) e^{-t}) = sigma sqrt(t)/x (1 + t/4x)(1 + t/2x)^2 K~_1(2x + t)
-    sum += rule.weights[i]! * sigma * Math.sqrt(t) * invX * (1 + 0.5 * r) * (1 + r) * (1 + r) * besselK1Scaled(2 * x + t);
+    sum += rule.weights[i]! * sigma * invX * (1 + 0.5 * r) * (1 + r) * (1 + r) * k1SqrtT;
   }
   return sum;
 }

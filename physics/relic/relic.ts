@@ -6,7 +6,8 @@
  * [tableXMin, tableXMax] (physics/relic/thermal-average.ts; near poles and thresholds from sigma
  * sampled once per point on a graded rule in sqrt(s), physics/relic/energy-grid.ts) -> starting guess for x_f (the standard
  * approximation, Kolb & Turner 1990 §5.2, relic.md eq. 3.1 with c = 1/2, reading the coarse
- * table) -> the table refined where its spline misses checked midpoints (tolerance weighted by
+ * table; a guess below tableXMin + 3 re-tabulates from x = 1, so that the solver never integrates
+ * directly below the table) -> the table refined where its spline misses checked midpoints (tolerance weighted by
  * x_f / x, the weight of <sigma v>(x) in Omega) -> full Boltzmann solution with the analytic tail
  * (physics/relic/boltzmann.ts) -> Omega h^2 = C (m/GeV) Y_0 (relic.md eq. 1.9, C =
  * OMEGA_YIELD_FACTOR of physics/constants.ts).
@@ -112,7 +113,7 @@ export const RELIC_KNOBS: readonly KnobSpec[] = Object.freeze([
   },
   {
     name: 'tableXMin', default: 3, min: 1, max: 20, integer: false,
-    doc: 'first table node (x); below it <sigma v> is evaluated directly',
+    doc: 'first table node (x) unless the x_f guess is below tableXMin + 3 (then the table starts at x = 1); below the table <sigma v> is evaluated directly',
     why: 'the x_f guess is read from the table and the solver starts at x_f - 3, so the table must start below typical x_f ~ 10-30',
   },
   {
@@ -175,6 +176,12 @@ const X_START_MIN = 1;
 const X_RELATIVISTIC = 3;
 /** narrowest table interval in ln x that the refinement still halves */
 const TABLE_MIN_STEP = 0.005;
+/**
+ * an x_f guess below tableXMin + this starts the table at X_START_MIN instead (the solver starts at
+ * x_f - 3; measured on the point-bench grid: a margin of 5 re-tabulated points with x_f 6-8 that never
+ * read below the table)
+ */
+const LOW_GUESS_MARGIN = 3;
 /** sqrt(45/8)/(2 pi^3) of relic.md eq. (3.1) */
 const XF_APPROX_PREFACTOR = Math.sqrt(45 / 8) / (2 * Math.PI ** 3);
 
@@ -195,14 +202,22 @@ export function relicAbundance(ann: Annihilation, dm: DmKind, knobOverrides?: Pa
     poleCoreWidths: knobs.poleCoreWidths,
     gridNodes: knobs.gridNodes,
   };
-  const noAnnihilation = (): RelicResult => Object.freeze({ omegaH2: NaN, xF: NaN, sigvFoCm3s: 0, flags: Object.freeze(['no_annihilation']) });
+  // no final state at all (e.g. Majorana dark matter with a vector mediator): sigma, the sum over
+  // channels (physics/annihilation-model.ts), vanishes identically
+  if (ann.channels.length === 0) return noAnnihilation();
 
   // coarse table first: the x_f guess reads it, and the refinement weights by that guess
   const xMin = knobs.tableXMin;
   const xMax = Math.max(knobs.tableXMax, 2 * xMin);
-  const nodes = Math.max(4, Math.ceil(knobs.tableNodesPerDecade * Math.log10(xMax / xMin)) + 1);
-  const coarse = tabulateThermalAverage(ann, xMin, xMax, nodes, tk);
-  const xFGuess = approximateFreezeOut(m, coarse.at);
+  const nodesFrom = (x0: number): number => Math.max(4, Math.ceil(knobs.tableNodesPerDecade * Math.log10(xMax / x0)) + 1);
+  let coarse = tabulateThermalAverage(ann, xMin, xMax, nodesFrom(xMin), tk);
+  let xFGuess = approximateFreezeOut(m, coarse.at, xMin);
+  if (xFGuess < xMin + LOW_GUESS_MARGIN && xMin > X_START_MIN) {
+    // the solver would start (near x_f - 3) below the table, where every <sigma v> is a direct
+    // adaptive integral (~100 sigma calls each): tabulate from X_START_MIN instead
+    coarse = tabulateThermalAverage(ann, X_START_MIN, xMax, nodesFrom(X_START_MIN), tk);
+    xFGuess = approximateFreezeOut(m, coarse.at, X_START_MIN);
+  }
   if (Number.isNaN(xFGuess)) return noAnnihilation();
   const table = coarse.refined({ relTol: knobs.tableRelTol, xWeight: xFGuess, minStep: TABLE_MIN_STEP });
   if (table.allZero && thermalAverage(ann, X_START_MIN, tk) === 0) return noAnnihilation();
@@ -223,16 +238,21 @@ export function relicAbundance(ann: Annihilation, dm: DmKind, knobOverrides?: Pa
   });
 }
 
+function noAnnihilation(): RelicResult {
+  return Object.freeze({ omegaH2: NaN, xF: NaN, sigvFoCm3s: 0, flags: Object.freeze(['no_annihilation']) });
+}
+
 /**
  * Starting guess for x_f: fixed-point iteration of relic.md eq. (3.1) with c = 1/2 and <sigma v>
- * at the trial x from `sigmaV`. NaN when it vanishes at x = 20 and at x = 1 (no annihilation).
+ * at the trial x from `sigmaV`, read no lower than xRead (the table's start: below it, the value at
+ * xRead stands in, a guess only). NaN when it vanishes at x = 20 and at x = 1 (no annihilation).
  */
-function approximateFreezeOut(m: number, sigmaV: (x: number) => number): number {
+function approximateFreezeOut(m: number, sigmaV: (x: number) => number, xRead: number): number {
   const dof = new Float64Array(3);
   const c = 0.5;
   let x = 20;
   for (let iter = 0; iter < 12; iter++) {
-    const sv = sigmaV(x);
+    const sv = sigmaV(Math.max(x, xRead));
     if (!(sv > 0)) {
       if (x === X_START_MIN) return sigmaV(X_START_MIN) > 0 ? X_START_MIN : NaN;
       x = X_START_MIN;

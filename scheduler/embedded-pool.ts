@@ -12,7 +12,9 @@
  */
 import { availableParallelism } from 'node:os';
 import { Worker } from 'node:worker_threads';
-import type { ChunkResult } from './chunk.js';
+import type { Calibration, ChunkResult } from './chunk.js';
+import { InvalidInputError, type Issue } from '../physics/issue.js';
+import { OutcomeQueue } from './outcome-queue.js';
 import type { ChunkRange } from './plan.js';
 import { TransportStartError, type ChunkOutcome, type ScanWork, type Transport } from './transport.js';
 
@@ -23,13 +25,27 @@ export interface EmbeddedPoolOptions {
   readonly maxAttempts?: number;
   /** module exporting prepare/evaluate; default physics/evaluate.ts (tests inject others) */
   readonly physicsModule?: string;
+  /**
+   * when > 0: the first thread times about this much compute after preparing (chunk.ts
+   * calibrateEvaluator, which also warms that thread's compiled code) and open() makes it
+   * available as `started.calibration`; default 0
+   */
+  readonly calibrateMs?: number;
+}
+
+/** What the threads reported when the pool opened. */
+export interface PoolStarted {
+  /** prepare()'s knobs as JSON (every thread runs the same code on the same spec) */
+  readonly knobsJson: string;
+  /** the first thread's calibration, when asked for */
+  readonly calibration: Calibration | null;
 }
 
 const THREAD_ENTRY = new URL('../workers/thread-entry.mjs', import.meta.url);
 
 type ThreadMessage =
-  | { type: 'ready'; observableNames: string[] }
-  | { type: 'fatal'; error: string }
+  | { type: 'ready'; observableNames: string[]; knobsJson: string; calibration: Calibration | null }
+  | { type: 'fatal'; error: string; issues?: Issue[] }
   | { type: 'result'; result: ChunkResult }
   | { type: 'error'; chunk: number; error: string };
 
@@ -51,12 +67,14 @@ export class EmbeddedPool implements Transport {
   readonly window: number;
   private readonly maxAttempts: number;
   private readonly physicsModule: string | undefined;
+  private readonly calibrateMs: number;
+  /** set once open() resolved */
+  started: PoolStarted | null = null;
   private work: ScanWork | null = null;
   private readonly slots = new Set<Slot>();
   private readonly queue: ChunkRange[] = [];
   private readonly attempts = new Map<number, number>();
-  private readonly outcomes: ChunkOutcome[] = [];
-  private waiter: ((o: ChunkOutcome) => void) | null = null;
+  private readonly outcomes = new OutcomeQueue<ChunkOutcome>((o) => o);
   private closed = false;
 
   constructor(options: EmbeddedPoolOptions = {}) {
@@ -64,6 +82,7 @@ export class EmbeddedPool implements Transport {
     if (!Number.isInteger(this.workers) || this.workers < 1) throw new RangeError(`workers must be a positive integer, got ${this.workers}`);
     this.maxAttempts = options.maxAttempts ?? 3;
     this.physicsModule = options.physicsModule;
+    this.calibrateMs = options.calibrateMs ?? 0;
     this.description = `embedded pool, ${this.workers} worker thread${this.workers === 1 ? '' : 's'}`;
     // every thread holds PER_THREAD chunks, plus one more each waiting here
     this.window = (PER_THREAD + 1) * this.workers;
@@ -72,12 +91,13 @@ export class EmbeddedPool implements Transport {
   async open(work: ScanWork): Promise<void> {
     if (this.work) throw new Error('the pool is already open');
     this.work = work;
-    const started = await Promise.allSettled(Array.from({ length: this.workers }, () => this.spawn()));
+    const started = await Promise.allSettled(Array.from({ length: this.workers }, (_, i) => this.spawn(i === 0 ? this.calibrateMs : 0)));
     const failed = started.find((s): s is PromiseRejectedResult => s.status === 'rejected');
     if (failed) {
       await this.close();
       throw failed.reason;
     }
+    this.started = (started[0] as PromiseFulfilledResult<PoolStarted>).value;
   }
 
   dispatch(range: ChunkRange): void {
@@ -87,12 +107,7 @@ export class EmbeddedPool implements Transport {
   }
 
   next(): Promise<ChunkOutcome> {
-    const ready = this.outcomes.shift();
-    if (ready) return Promise.resolve(ready);
-    if (this.waiter) throw new Error('next() is already waiting');
-    return new Promise((resolve) => {
-      this.waiter = resolve;
-    });
+    return this.outcomes.take();
   }
 
   async close(): Promise<void> {
@@ -104,12 +119,12 @@ export class EmbeddedPool implements Transport {
     await Promise.all(all.map((s) => s.worker.terminate()));
   }
 
-  /** Starts one thread and resolves when its physics is prepared. */
-  private spawn(): Promise<Slot> {
+  /** Starts one thread and resolves when its physics is prepared (and calibrated, when asked). */
+  private spawn(calibrateMs = 0): Promise<PoolStarted> {
     const work = this.work!;
     return new Promise((resolve, reject) => {
       const worker = new Worker(THREAD_ENTRY, {
-        workerData: { resolvedSpecJson: work.resolvedSpecJson, physicsModule: this.physicsModule },
+        workerData: { resolvedSpecJson: work.resolvedSpecJson, physicsModule: this.physicsModule, calibrateMs },
       });
       const slot: Slot = { worker, posted: [] };
       let ready = false;
@@ -123,10 +138,11 @@ export class EmbeddedPool implements Transport {
           }
           ready = true;
           this.slots.add(slot);
-          resolve(slot);
+          resolve({ knobsJson: msg.knobsJson, calibration: msg.calibration });
           this.feed();
         } else if (msg.type === 'fatal') {
-          reject(new TransportStartError(`a worker thread could not prepare the scan: ${msg.error}`));
+          // a setup the physics refuses is bad input (exit 2), anything else a start failure
+          reject(msg.issues ? new InvalidInputError(msg.issues) : new TransportStartError(`a worker thread could not prepare the scan: ${msg.error}`));
         } else if (msg.type === 'result') {
           this.unpost(slot, msg.result.chunk);
           this.attempts.delete(msg.result.chunk);
@@ -193,10 +209,6 @@ export class EmbeddedPool implements Transport {
 
   private deliver(outcome: ChunkOutcome): void {
     if (this.closed) return;
-    const w = this.waiter;
-    if (w) {
-      this.waiter = null;
-      w(outcome);
-    } else this.outcomes.push(outcome);
+    this.outcomes.put(outcome);
   }
 }

@@ -26,6 +26,7 @@
  */
 import { Queue, Worker, type ConnectionOptions, type Job } from 'bullmq';
 import type { Redis } from 'ioredis';
+import { OutcomeQueue } from '../outcome-queue.js';
 import type { ChunkRange } from '../plan.js';
 import { decodeChunkResult, type ChunkOutcome, type EncodedChunkResult, type ScanWork, type Transport } from '../transport.js';
 import { bullConnection, openClient, probeRedis, redactRedisUrl, redisOptionsFromUrl, redisPrefix, serverRunId } from './connection.js';
@@ -83,8 +84,11 @@ export class RedisTransport implements Transport {
   private readonly outstanding = new Map<number, ChunkRange>();
   private toAdd: ChunkRange[] = [];
   private adding: Promise<void> | null = null;
-  private readonly outcomes: { outcome: ChunkOutcome; ack: () => void }[] = [];
-  private waiter: ((o: ChunkOutcome) => void) | null = null;
+  /** finished chunks; an outcome's acknowledgement is recorded when the scheduler receives it */
+  private readonly outcomes = new OutcomeQueue<{ outcome: ChunkOutcome; ack: () => void }, ChunkOutcome>(({ outcome, ack }) => {
+    this.unacked.push(ack);
+    return outcome;
+  });
   /** acknowledgements of outcomes handed to the scheduler, run at its next call */
   private unacked: (() => void)[] = [];
   private pollTimer: NodeJS.Timeout | null = null;
@@ -165,15 +169,7 @@ export class RedisTransport implements Transport {
 
   next(): Promise<ChunkOutcome> {
     this.ackDelivered();
-    const ready = this.outcomes.shift();
-    if (ready) {
-      this.unacked.push(ready.ack);
-      return Promise.resolve(ready.outcome);
-    }
-    if (this.waiter) throw new Error('next() is already waiting');
-    return new Promise((resolve) => {
-      this.waiter = resolve;
-    });
+    return this.outcomes.take();
   }
 
   async close(): Promise<void> {
@@ -181,11 +177,11 @@ export class RedisTransport implements Transport {
     this.closed = true;
     if (this.pollTimer) clearInterval(this.pollTimer);
     this.ackDelivered();
-    const unfinished = this.outstanding.size > 0 || this.outcomes.length > 0;
+    const unfinished = this.outstanding.size > 0 || this.outcomes.size > 0;
     try {
       await this.adding;
       // results handed over but not consumed stay active; they come back on the next run
-      await this.results?.close(this.outcomes.length > 0);
+      await this.results?.close(this.outcomes.size > 0);
       if (this.queue && this.client) {
         if (unfinished) {
           await this.queue.pause();
@@ -264,12 +260,7 @@ export class RedisTransport implements Transport {
   }
 
   private deliver(outcome: ChunkOutcome, ack: () => void): void {
-    const w = this.waiter;
-    if (w) {
-      this.waiter = null;
-      this.unacked.push(ack);
-      w(outcome);
-    } else this.outcomes.push({ outcome, ack });
+    this.outcomes.put({ outcome, ack });
   }
 
   private ackDelivered(): void {

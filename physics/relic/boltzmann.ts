@@ -117,52 +117,34 @@ export function solveFreezeOut(input: FreezeOutInput, knobs: FreezeOutKnobs): Fr
   const m = input.mChiGeV;
   const g = input.gChi;
   const sigmaV = input.sigmaV;
-  // L = lambda <sigma v> / x^2 and Y_eq at x, written into pointL / pointYEq (no allocation per step)
-  let pointL = 0;
-  let pointYEq = 0;
-  const at = (x: number): void => {
-    fastDofInto(m / x, dofScratch);
-    pointL = (LAMBDA_PREFACTOR * m * dofScratch[1]! * sigmaV(x)) / (x * x);
-    pointYEq = (YEQ_PREFACTOR * g * x * x * besselK2Scaled(x) * Math.exp(-x)) / dofScratch[0]!;
-  };
-
   // 1. quasi-static start
   const r = knobs.quasiStaticDeviation;
   const lnTarget = Math.log(r * (2 + r));
-  const lnQ = (x: number): number => {
-    dofInto(m / x, dofScratch);
-    const minusDlnYeq = besselK1Scaled(x) / besselK2Scaled(x) - dofScratch[2]! / x;
-    at(x);
-    return Math.log(minusDlnYeq / (pointL * pointYEq));
-  };
   let xs = Math.max(input.xStartMin, input.xFGuess - 3);
-  let f0 = lnQ(xs) - lnTarget;
+  let f0 = lnQAt(m, g, sigmaV, xs) - lnTarget;
   let xPrev = xs + 1;
-  let fPrev = lnQ(xPrev) - lnTarget;
+  let fPrev = lnQAt(m, g, sigmaV, xPrev) - lnTarget;
   for (let iter = 0; iter < 30 && Math.abs(f0) > 1e-4; iter++) {
     const slope = (f0 - fPrev) / (xs - xPrev);
     const step = Math.max(-5, Math.min(5, -f0 / (slope > 0.2 ? slope : 1)));
     xPrev = xs;
     fPrev = f0;
     xs = Math.max(input.xStartMin, xs + step);
-    f0 = lnQ(xs) - lnTarget;
+    f0 = lnQAt(m, g, sigmaV, xs) - lnTarget;
     if (xs === input.xStartMin && f0 > 0) break;
   }
-  const quasiStatic = (x: number): number => {
-    const qx = Math.exp(lnQ(x));
-    return pointYEq * (1 + qx / (1 + Math.sqrt(1 + qx)));
-  };
   const sampleX = input.sampleX ?? [];
   const samples = new Float64Array(sampleX.length);
   let nextSample = 0;
   while (nextSample < sampleX.length && sampleX[nextSample]! <= xs) {
-    samples[nextSample] = quasiStatic(sampleX[nextSample]!);
+    const qx = Math.exp(lnQAt(m, g, sigmaV, sampleX[nextSample]!));
+    samples[nextSample] = point[1]! * (1 + qx / (1 + Math.sqrt(1 + qx)));
     nextSample++;
   }
-  const q = Math.exp(lnQ(xs));
+  const q = Math.exp(lnQAt(m, g, sigmaV, xs));
   let curX = xs;
-  let curL = pointL;
-  let curYEq = pointYEq;
+  let curL = point[0]!;
+  let curYEq = point[1]!;
   const delta = q / (1 + Math.sqrt(1 + q)); // positive root of delta (2 + delta) = q
   let y = curYEq * (1 + delta);
 
@@ -177,10 +159,12 @@ export function solveFreezeOut(input: FreezeOutInput, knobs: FreezeOutKnobs): Fr
   while (steps < maxSteps) {
     if (!Number.isNaN(xF) && curYEq < knobs.equilibriumCut * y) break;
     const x0 = curX;
-    at(x0 + GAMMA * h);
-    const midL = pointL;
-    const midYEq = pointYEq;
-    at(x0 + h);
+    evaluateAt(m, g, sigmaV, x0 + GAMMA * h);
+    const midL = point[0]!;
+    const midYEq = point[1]!;
+    evaluateAt(m, g, sigmaV, x0 + h);
+    const pointL = point[0]!;
+    const pointYEq = point[1]!;
     const f0v = -curL * (y * y - curYEq * curYEq);
     let a = 0.5 * GAMMA * h * midL;
     let c = y + 0.5 * GAMMA * h * f0v + a * midYEq * midYEq;
@@ -224,21 +208,44 @@ export function solveFreezeOut(input: FreezeOutInput, knobs: FreezeOutKnobs): Fr
   const uA = Math.log(xTail);
   const uJ = Math.log(m / DOF_FIT_JUNCTION_GEV);
   const svConst = sigmaV(xConst);
-  // int_{x_a}^{x} L dx' for x >= x_a
-  const tailTo = (x: number): number => {
-    const uB = Math.log(Math.min(x, xConst));
-    let sum = 0;
-    if (uJ > uA && uJ < uB) {
-      sum = tailIntegral(m, sigmaV, uA, uJ, knobs.tailPanelWidth) + tailIntegral(m, sigmaV, uJ, uB, knobs.tailPanelWidth);
-    } else if (uB > uA) {
-      sum = tailIntegral(m, sigmaV, uA, uB, knobs.tailPanelWidth);
-    }
-    if (x > xConst) sum += LAMBDA_PREFACTOR * svConst * (gStarHalfIntegral(m / xConst) - gStarHalfIntegral(m / x));
-    return sum;
-  };
-  for (; nextSample < sampleX.length; nextSample++) samples[nextSample] = 1 / (1 / y + tailTo(sampleX[nextSample]!));
-  const yieldToday = 1 / (1 / y + tailTo(xConst) + LAMBDA_PREFACTOR * svConst * gStarHalfIntegral(m / xConst));
+  const width = knobs.tailPanelWidth;
+  for (; nextSample < sampleX.length; nextSample++) samples[nextSample] = 1 / (1 / y + tailTo(m, sigmaV, uA, uJ, xConst, svConst, width, sampleX[nextSample]!));
+  const yieldToday = 1 / (1 / y + tailTo(m, sigmaV, uA, uJ, xConst, svConst, width, xConst) + LAMBDA_PREFACTOR * svConst * gStarHalfIntegral(m / xConst));
   return Object.freeze({ yieldToday, xF, xStart: xs, xTail, steps, samples });
+}
+
+/** L = lambda <sigma v> / x^2 and Y_eq at the last x given to evaluateAt (module scratch: no allocation per step) */
+const point = new Float64Array(2);
+
+function evaluateAt(m: number, g: number, sigmaV: (x: number) => number, x: number): void {
+  fastDofInto(m / x, dofScratch);
+  point[0] = (LAMBDA_PREFACTOR * m * dofScratch[1]! * sigmaV(x)) / (x * x);
+  point[1] = (YEQ_PREFACTOR * g * x * x * besselK2Scaled(x) * Math.exp(-x)) / dofScratch[0]!;
+}
+
+/** ln q(x), q = -Y_eq'/(L Y_eq^2), of the quasi-static start; leaves L and Y_eq at x in `point` */
+function lnQAt(m: number, g: number, sigmaV: (x: number) => number, x: number): number {
+  dofInto(m / x, dofScratch);
+  const minusDlnYeq = besselK1Scaled(x) / besselK2Scaled(x) - dofScratch[2]! / x;
+  evaluateAt(m, g, sigmaV, x);
+  return Math.log(minusDlnYeq / (point[0]! * point[1]!));
+}
+
+/**
+ * int_{x_a}^{x} L dx' for x >= x_a (u = ln x): the Gauss-Legendre panels up to the end x_c of the
+ * <sigma v> table, then with <sigma v> constant the closed form
+ * int_{x_c}^x lambda <sigma v> dx / x^2 = sqrt(pi/45) M_Pl <sigma v> int_{m/x}^{m/x_c} g_*^{1/2} dT
+ */
+function tailTo(m: number, sigmaV: (x: number) => number, uA: number, uJ: number, xConst: number, svConst: number, width: number, x: number): number {
+  const uB = Math.log(Math.min(x, xConst));
+  let sum = 0;
+  if (uJ > uA && uJ < uB) {
+    sum = tailIntegral(m, sigmaV, uA, uJ, width) + tailIntegral(m, sigmaV, uJ, uB, width);
+  } else if (uB > uA) {
+    sum = tailIntegral(m, sigmaV, uA, uB, width);
+  }
+  if (x > xConst) sum += LAMBDA_PREFACTOR * svConst * (gStarHalfIntegral(m / xConst) - gStarHalfIntegral(m / x));
+  return sum;
 }
 
 /** int_{uA}^{uB} lambda(x) <sigma v>(x) / x du, x = e^u, composite Gauss-Legendre (TAIL_NODES per panel). */

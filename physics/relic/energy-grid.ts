@@ -87,14 +87,7 @@ export function buildEnergyGrid(ann: Annihilation, xLow: number, xHigh: number, 
   }
   const cuts: number[] = [0, deltaMax];
   const edges: number[] = [0];
-  const graded = (centre: number, step: number, up: boolean, down: boolean): void => {
-    for (let d = step; d < deltaMax; d *= GRADING) {
-      if (up && centre + d < deltaMax) cuts.push(centre + d);
-      if (down && centre - d > 0) cuts.push(centre - d);
-      if (!(centre + d < deltaMax) && !(centre - d > 0)) break;
-    }
-  };
-  graded(0, first, true, false);
+  graded(cuts, deltaMax, 0, first, false);
   for (const e of ann.thresholdsGeV) {
     const d = e - 2 * m;
     if (!(d > 0 && d < deltaMax)) continue;
@@ -103,7 +96,7 @@ export function buildEnergyGrid(ann: Annihilation, xLow: number, xHigh: number, 
     // sigma is analytic below an opening channel (the channel is absent there), so only the side
     // above is graded; the threshold matters only while d r < tMax, where the thermal scale 1/r
     // exceeds d / tMax, so the first piece need not be narrower than that
-    graded(d, Math.max(first, d / tMax), true, false);
+    graded(cuts, deltaMax, d, Math.max(first, d / tMax), false);
   }
   for (const p of ann.poles) {
     if (!(p.massGeV > 2 * m) || !(p.widthGeV > 0)) continue;
@@ -111,7 +104,7 @@ export function buildEnergyGrid(ann: Annihilation, xLow: number, xHigh: number, 
     const dp = pole[0]!;
     if (!(dp - pole[1]! < deltaMax)) continue;
     if (dp > 0 && dp < deltaMax) cuts.push(dp);
-    graded(dp, pole[1]!, true, true);
+    graded(cuts, deltaMax, dp, pole[1]!, true);
   }
   const sorted = Float64Array.from(cuts).sort();
   const left: number[] = [];
@@ -151,6 +144,15 @@ export function buildEnergyGrid(ann: Annihilation, xLow: number, xHigh: number, 
   }
   pieceStart[pieces] = k;
   return Object.freeze({ mChiGeV: m, delta, weight, inverseE, pieceLeft: Float64Array.from(left), pieceStart });
+}
+
+/** Cuts at centre + step 2^k (and centre - step 2^k when `down`) inside (0, deltaMax). */
+function graded(cuts: number[], deltaMax: number, centre: number, step: number, down: boolean): void {
+  for (let d = step; d < deltaMax; d *= GRADING) {
+    if (centre + d < deltaMax) cuts.push(centre + d);
+    if (down && centre - d > 0) cuts.push(centre - d);
+    if (!(centre + d < deltaMax) && !(centre - d > 0)) break;
+  }
 }
 
 /**

@@ -35,7 +35,7 @@ import { dofInto } from '../dof.js';
 import { InvalidInputError, type Issue } from '../issue.js';
 import type { DmKind } from '../model.js';
 import { solveFreezeOut } from './boltzmann.js';
-import { tabulateThermalAverage, thermalAverage, type ThermalAverageKnobs } from './thermal-average.js';
+import { tabulateThermalAverage, thermalAverage, type SigmaVTable, type ThermalAverageKnobs } from './thermal-average.js';
 
 export interface RelicResult {
   /** Omega h^2 of all dark matter (chi + chibar for Dirac); NaN when there is no annihilation */
@@ -209,21 +209,20 @@ export function relicAbundance(ann: Annihilation, dm: DmKind, knobOverrides?: Pa
   // coarse table first: the x_f guess reads it, and the refinement weights by that guess
   const xMin = knobs.tableXMin;
   const xMax = Math.max(knobs.tableXMax, 2 * xMin);
-  const nodesFrom = (x0: number): number => Math.max(4, Math.ceil(knobs.tableNodesPerDecade * Math.log10(xMax / x0)) + 1);
-  let coarse = tabulateThermalAverage(ann, xMin, xMax, nodesFrom(xMin), tk);
-  let xFGuess = approximateFreezeOut(m, coarse.at, xMin);
+  let coarse = tabulateThermalAverage(ann, xMin, xMax, tableNodes(knobs, xMin, xMax), tk);
+  let xFGuess = approximateFreezeOut(m, coarse, xMin);
   if (xFGuess < xMin + LOW_GUESS_MARGIN && xMin > X_START_MIN) {
     // the solver would start (near x_f - 3) below the table, where every <sigma v> is a direct
     // adaptive integral (~100 sigma calls each): tabulate from X_START_MIN instead
-    coarse = tabulateThermalAverage(ann, X_START_MIN, xMax, nodesFrom(X_START_MIN), tk);
-    xFGuess = approximateFreezeOut(m, coarse.at, X_START_MIN);
+    coarse = tabulateThermalAverage(ann, X_START_MIN, xMax, tableNodes(knobs, X_START_MIN, xMax), tk);
+    xFGuess = approximateFreezeOut(m, coarse, X_START_MIN);
   }
   if (Number.isNaN(xFGuess)) return noAnnihilation();
   const table = coarse.refined({ relTol: knobs.tableRelTol, xWeight: xFGuess, minStep: TABLE_MIN_STEP });
   if (table.allZero && thermalAverage(ann, X_START_MIN, tk) === 0) return noAnnihilation();
 
   const solution = solveFreezeOut(
-    { mChiGeV: m, gChi: G_CHI, sigmaV: table.at, sigmaVConstantFromX: xMax, xStartMin: X_START_MIN, xFGuess },
+    { mChiGeV: m, gChi: G_CHI, sigmaV: table.at.bind(table), sigmaVConstantFromX: xMax, xStartMin: X_START_MIN, xFGuess },
     knobs,
   );
   const populations = dm === 'dirac' ? 2 : 1;
@@ -238,23 +237,28 @@ export function relicAbundance(ann: Annihilation, dm: DmKind, knobOverrides?: Pa
   });
 }
 
+/** nodes of the coarse table on [x0, xMax] */
+function tableNodes(knobs: RelicKnobs, x0: number, xMax: number): number {
+  return Math.max(4, Math.ceil(knobs.tableNodesPerDecade * Math.log10(xMax / x0)) + 1);
+}
+
 function noAnnihilation(): RelicResult {
   return Object.freeze({ omegaH2: NaN, xF: NaN, sigvFoCm3s: 0, flags: Object.freeze(['no_annihilation']) });
 }
 
 /**
  * Starting guess for x_f: fixed-point iteration of relic.md eq. (3.1) with c = 1/2 and <sigma v>
- * at the trial x from `sigmaV`, read no lower than xRead (the table's start: below it, the value at
+ * at the trial x from the table, read no lower than xRead (the table's start: below it, the value at
  * xRead stands in, a guess only). NaN when it vanishes at x = 20 and at x = 1 (no annihilation).
  */
-function approximateFreezeOut(m: number, sigmaV: (x: number) => number, xRead: number): number {
+function approximateFreezeOut(m: number, table: SigmaVTable, xRead: number): number {
   const dof = new Float64Array(3);
   const c = 0.5;
   let x = 20;
   for (let iter = 0; iter < 12; iter++) {
-    const sv = sigmaV(Math.max(x, xRead));
+    const sv = table.at(Math.max(x, xRead));
     if (!(sv > 0)) {
-      if (x === X_START_MIN) return sigmaV(X_START_MIN) > 0 ? X_START_MIN : NaN;
+      if (x === X_START_MIN) return table.at(X_START_MIN) > 0 ? X_START_MIN : NaN;
       x = X_START_MIN;
       continue;
     }

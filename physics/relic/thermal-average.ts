@@ -341,8 +341,7 @@ export function tabulateThermalAverage(
   if (!(nodes >= 4) || !(xMax > xMin) || !(xMin > 0)) {
     throw new RangeError(`tabulateThermalAverage: need nodes >= 4 and 0 < xMin < xMax, got nodes=${nodes}, xMin=${xMin}, xMax=${xMax}`);
   }
-  const average = tableAverager(ann, xMin, xMax, knobs);
-  const lnValue = (u: number): number => Math.log(Math.max(average(Math.exp(u)), LOG_FLOOR));
+  const lnValue = new TableAverager(ann, xMin, xMax, knobs);
   const u0 = Math.log(xMin);
   const uEnd = Math.log(xMax);
   const du = (uEnd - u0) / (nodes - 1);
@@ -351,80 +350,135 @@ export function tabulateThermalAverage(
   for (let i = 0; i < nodes; i++) {
     const u = i === nodes - 1 ? uEnd : u0 + i * du;
     us.push(u);
-    ys.push(lnValue(u));
+    ys.push(lnValue.at(u));
   }
   if (refine) refineTable(us, ys, lnValue, refine);
-  return splineTable(ann, knobs, xMin, xMax, us, ys, lnValue);
+  return new SplineTable(ann, knobs, xMin, xMax, us, ys, lnValue);
 }
 
 /**
- * <sigma v>(x) for x in [xMin, xMax], the table's evaluator: the Laguerre rule where the integrand
- * is smooth at this x (same test as the direct path: no threshold within tMax, no pole within
- * 2 tMax in t; a listed sub-threshold pole must lie beyond 2 tMax too), otherwise the per-point
- * sigma(E) grid (physics/relic/energy-grid.ts), built on first need and reused for every later x.
+ * ln<sigma v> at u = ln x for x in [xMin, xMax], the table's evaluator (floored at LOG_FLOOR): the
+ * Laguerre rule where the integrand is smooth at this x (same test as the direct path: no threshold
+ * within tMax, no pole within 2 tMax in t; a listed sub-threshold pole must lie beyond 2 tMax too),
+ * otherwise the per-point sigma(E) grid (physics/relic/energy-grid.ts), built on first need and
+ * reused for every later x. A class, not a closure: one object per point, no function objects.
  */
-function tableAverager(ann: Annihilation, xMin: number, xMax: number, knobs: ThermalAverageKnobs): (x: number) => number {
-  const m = ann.mChiGeV;
-  const rule = gaussLaguerre(knobs.laguerreNodes, 0.5);
-  const tMax = knobs.tMax;
-  // singular points in delta = sqrt(s) - 2m: thresholds (reach tMax), poles (reach 2 tMax, and only
-  // while their half-width in t is below tMax, as in piecesOf)
-  const thresholds = Float64Array.from(ann.thresholdsGeV.map((e) => e - 2 * m).filter((d) => d > 0));
-  const poleRe: number[] = [];
-  const poleIm: number[] = [];
-  const pole = new Float64Array(2);
-  for (const p of ann.poles) {
-    if (!(p.massGeV > 2 * m) || !(p.widthGeV > 0)) continue;
-    poleInDelta(m, p.massGeV, p.widthGeV, pole);
-    poleRe.push(pole[0]!);
-    poleIm.push(pole[1]!);
+class TableAverager {
+  private readonly ann: Annihilation;
+  private readonly m: number;
+  private readonly xMin: number;
+  private readonly xMax: number;
+  private readonly tMax: number;
+  private readonly gridNodes: number;
+  private readonly rule: GaussRule;
+  private readonly thresholds: Float64Array;
+  private readonly poleRe: Float64Array;
+  private readonly poleIm: Float64Array;
+  /** the grid serves x only below the last x at which some singular point is within reach */
+  private readonly xGrid: number;
+  private grid: EnergyGrid | null = null;
+
+  constructor(ann: Annihilation, xMin: number, xMax: number, knobs: ThermalAverageKnobs) {
+    const m = ann.mChiGeV;
+    const tMax = knobs.tMax;
+    this.ann = ann;
+    this.m = m;
+    this.xMin = xMin;
+    this.xMax = xMax;
+    this.tMax = tMax;
+    this.gridNodes = knobs.gridNodes;
+    this.rule = gaussLaguerre(knobs.laguerreNodes, 0.5);
+    // singular points in delta = sqrt(s) - 2m: thresholds (reach tMax), poles (reach 2 tMax, and only
+    // while their half-width in t is below tMax, as in piecesOf)
+    const thresholds: number[] = [];
+    for (const e of ann.thresholdsGeV) if (e - 2 * m > 0) thresholds.push(e - 2 * m);
+    const poleRe: number[] = [];
+    const poleIm: number[] = [];
+    const pole = new Float64Array(2);
+    for (const p of ann.poles) {
+      if (!(p.massGeV > 2 * m) || !(p.widthGeV > 0)) continue;
+      poleInDelta(m, p.massGeV, p.widthGeV, pole);
+      poleRe.push(pole[0]!);
+      poleIm.push(pole[1]!);
+    }
+    for (const p of ann.subthresholdPoles ?? []) {
+      if (!(p.massGeV > 0) || !(p.widthGeV >= 0)) continue;
+      poleInDelta(m, p.massGeV, p.widthGeV, pole);
+      // distance of the singularity from the threshold edge, as a pole at that delta whose reach
+      // is SUBTHRESHOLD_REACH / 2 tMax of an above-threshold pole's (tested as poleRe r < 2 tMax)
+      poleRe.push((Math.hypot(pole[0]!, pole[1]!) * 2 * tMax) / SUBTHRESHOLD_REACH);
+      poleIm.push(0);
+    }
+    let xGrid = xMin;
+    for (const d of thresholds) xGrid = Math.max(xGrid, (tMax * m) / d);
+    for (let i = 0; i < poleRe.length; i++) xGrid = Math.max(xGrid, Math.min((2 * tMax * m) / poleRe[i]!, (tMax * m) / poleIm[i]!));
+    this.thresholds = Float64Array.from(thresholds);
+    this.poleRe = Float64Array.from(poleRe);
+    this.poleIm = Float64Array.from(poleIm);
+    this.xGrid = xGrid;
   }
-  for (const p of ann.subthresholdPoles ?? []) {
-    if (!(p.massGeV > 0) || !(p.widthGeV >= 0)) continue;
-    poleInDelta(m, p.massGeV, p.widthGeV, pole);
-    // distance of the singularity from the threshold edge, as a pole at that delta whose reach
-    // is SUBTHRESHOLD_REACH / 2 tMax of an above-threshold pole's (tested as poleRe r < 2 tMax)
-    poleRe.push((Math.hypot(pole[0]!, pole[1]!) * 2 * tMax) / SUBTHRESHOLD_REACH);
-    poleIm.push(0);
-  }
-  // the grid serves x only below the last x at which some singular point is within reach
-  let xGrid = xMin;
-  for (const d of thresholds) xGrid = Math.max(xGrid, (tMax * m) / d);
-  for (let i = 0; i < poleRe.length; i++) xGrid = Math.max(xGrid, Math.min((2 * tMax * m) / poleRe[i]!, (tMax * m) / poleIm[i]!));
-  let grid: EnergyGrid | null = null;
-  return (x: number): number => {
-    const r = x / m;
+
+  /** ln max(<sigma v>(e^u), LOG_FLOOR) */
+  at(u: number): number {
+    const x = Math.exp(u);
+    const r = x / this.m;
+    const tMax = this.tMax;
     let smooth = true;
-    for (let i = 0; i < thresholds.length && smooth; i++) if (thresholds[i]! * r < tMax) smooth = false;
-    for (let i = 0; i < poleRe.length && smooth; i++) if (poleRe[i]! * r < 2 * tMax && poleIm[i]! * r < tMax) smooth = false;
-    if (smooth) return (4 / besselK2Scaled(x) ** 2) * laguerreRuleSum(ann, x, rule);
-    grid ??= buildEnergyGrid(ann, xMin, Math.min(xMax, xGrid), tMax, knobs.gridNodes);
-    return gridThermalAverage(grid, x, tMax);
-  };
+    for (let i = 0; i < this.thresholds.length && smooth; i++) if (this.thresholds[i]! * r < tMax) smooth = false;
+    for (let i = 0; i < this.poleRe.length && smooth; i++) if (this.poleRe[i]! * r < 2 * tMax && this.poleIm[i]! * r < tMax) smooth = false;
+    let value: number;
+    if (smooth) {
+      value = (4 / besselK2Scaled(x) ** 2) * laguerreRuleSum(this.ann, x, this.rule);
+    } else {
+      this.grid ??= buildEnergyGrid(this.ann, this.xMin, Math.min(this.xMax, this.xGrid), tMax, this.gridNodes);
+      value = gridThermalAverage(this.grid, x, tMax);
+    }
+    return Math.log(Math.max(value, LOG_FLOOR));
+  }
 }
 
 /** The spline table through (us, ys); `lnValue` evaluates ln<sigma v> at further nodes. */
-function splineTable(
-  ann: Annihilation,
-  knobs: ThermalAverageKnobs,
-  xMin: number,
-  xMax: number,
-  us: readonly number[],
-  ys: readonly number[],
-  lnValue: (u: number) => number,
-): SigmaVTable {
-  const u0 = Math.log(xMin);
-  const n = us.length;
-  const allZero = ys.every((y) => y === Math.log(LOG_FLOOR));
-  const u = Float64Array.from(us);
-  const y = Float64Array.from(ys);
-  const m2 = notAKnotSecondDerivatives(u, y);
-  const last = n - 1;
-  const endValue = Math.exp(y[last]!);
-  const at = (x: number): number => {
+class SplineTable implements SigmaVTable {
+  readonly xMin: number;
+  readonly xMax: number;
+  readonly nodes: number;
+  readonly allZero: boolean;
+  private readonly ann: Annihilation;
+  private readonly knobs: ThermalAverageKnobs;
+  private readonly us: readonly number[];
+  private readonly ys: readonly number[];
+  private readonly lnValue: TableAverager;
+  private readonly u0: number;
+  private readonly u: Float64Array;
+  private readonly y: Float64Array;
+  private readonly m2: Float64Array;
+  private readonly endValue: number;
+
+  constructor(ann: Annihilation, knobs: ThermalAverageKnobs, xMin: number, xMax: number, us: readonly number[], ys: readonly number[], lnValue: TableAverager) {
+    this.ann = ann;
+    this.knobs = knobs;
+    this.xMin = xMin;
+    this.xMax = xMax;
+    this.us = us;
+    this.ys = ys;
+    this.lnValue = lnValue;
+    this.nodes = us.length;
+    this.u0 = Math.log(xMin);
+    this.allZero = ys.every((y) => y === Math.log(LOG_FLOOR));
+    this.u = Float64Array.from(us);
+    this.y = Float64Array.from(ys);
+    this.m2 = notAKnotSecondDerivatives(this.u, this.y);
+    this.endValue = Math.exp(this.y[this.nodes - 1]!);
+  }
+
+  at(x: number): number {
     const ux = Math.log(x);
-    if (!(ux >= u0)) return x > 0 ? thermalAverage(ann, x, knobs) : NaN;
-    if (ux >= u[last]!) return endValue;
+    const u = this.u;
+    const y = this.y;
+    const m2 = this.m2;
+    const last = this.nodes - 1;
+    if (!(ux >= this.u0)) return x > 0 ? thermalAverage(this.ann, x, this.knobs) : NaN;
+    if (ux >= u[last]!) return this.endValue;
     // binary search for the interval [u_i, u_i+1] holding ux
     let lo = 0;
     let hi = last;
@@ -437,18 +491,18 @@ function splineTable(
     const b = (ux - u[lo]!) / h;
     const a = 1 - b;
     return Math.exp(a * y[lo]! + b * y[lo + 1]! + ((a * a * a - a) * m2[lo]! + (b * b * b - b) * m2[lo + 1]!) * ((h * h) / 6));
-  };
-  const refined = (refine: TableRefinement): SigmaVTable => {
-    const usR = [...us];
-    const ysR = [...ys];
-    refineTable(usR, ysR, lnValue, refine);
-    return splineTable(ann, knobs, xMin, xMax, usR, ysR, lnValue);
-  };
-  return Object.freeze({ xMin, xMax, nodes: n, at, allZero, refined });
+  }
+
+  refined(refine: TableRefinement): SigmaVTable {
+    const usR = [...this.us];
+    const ysR = [...this.ys];
+    refineTable(usR, ysR, this.lnValue, refine);
+    return new SplineTable(this.ann, this.knobs, this.xMin, this.xMax, usR, ysR, this.lnValue);
+  }
 }
 
 /** Inserts checked midpoints into (us, ys) until the local cubic predicts each to tolerance. */
-function refineTable(us: number[], ys: number[], lnValue: (u: number) => number, r: TableRefinement): void {
+function refineTable(us: number[], ys: number[], lnValue: TableAverager, r: TableRefinement): void {
   // intervals still to check, as their left node's u; processed left to right
   const pending: number[] = us.slice(0, -1).reverse();
   while (pending.length > 0 && us.length < MAX_TABLE_NODES) {
@@ -459,7 +513,7 @@ function refineTable(us: number[], ys: number[], lnValue: (u: number) => number,
     if (Math.exp(uR) < 0.5 * r.xWeight) continue;
     const uMid = 0.5 * (uL + uR);
     const predicted = localCubic(us, ys, i, uMid);
-    const yMid = lnValue(uMid);
+    const yMid = lnValue.at(uMid);
     us.splice(i + 1, 0, uMid);
     ys.splice(i + 1, 0, yMid);
     const tol = r.relTol * Math.max(1, Math.exp(uMid) / r.xWeight);
@@ -489,7 +543,6 @@ function notAKnotSecondDerivatives(u: Float64Array, y: Float64Array): Float64Arr
   const m = new Float64Array(n);
   const h = new Float64Array(n - 1);
   for (let i = 0; i + 1 < n; i++) h[i] = u[i + 1]! - u[i]!;
-  const rhs = (i: number): number => 6 * ((y[i + 1]! - y[i]!) / h[i]! - (y[i]! - y[i - 1]!) / h[i - 1]!);
   // unknowns M1..M_{n-2}; M0 and M_{n-1} eliminated with the not-a-knot conditions
   const k = n - 2;
   const diag = new Float64Array(k);
@@ -501,7 +554,7 @@ function notAKnotSecondDerivatives(u: Float64Array, y: Float64Array): Float64Arr
     lower[j] = h[i - 1]!;
     diag[j] = 2 * (h[i - 1]! + h[i]!);
     upper[j] = h[i]!;
-    r[j] = rhs(i);
+    r[j] = 6 * ((y[i + 1]! - y[i]!) / h[i]! - (y[i]! - y[i - 1]!) / h[i - 1]!);
   }
   const h0 = h[0]!;
   const h1 = h[1]!;

@@ -25,24 +25,6 @@ export const LEDGER_SCHEMA_VERSION = 1;
 
 export type ScanStatus = 'running' | 'interrupted' | 'done' | 'incomplete';
 
-export interface ScanRecord {
-  readonly id: number;
-  readonly name: string;
-  readonly specJson: string;
-  readonly specHash: string;
-  readonly codeVersion: string;
-  readonly createdAt: string;
-  /** last status change (for a running scan: when this run started) */
-  readonly updatedAt: string;
-  readonly status: ScanStatus;
-  readonly constantsEdition: string;
-  readonly knobsJson: string;
-  readonly observables: readonly string[];
-  readonly nPoints: number;
-  readonly chunkSize: number;
-  readonly nChunks: number;
-}
-
 export interface NewScan {
   readonly name: string;
   readonly specJson: string;
@@ -54,6 +36,15 @@ export interface NewScan {
   readonly nPoints: number;
   readonly chunkSize: number;
   readonly nChunks: number;
+}
+
+/** A scan as stored: what it was created with, plus the ledger's own bookkeeping. */
+export interface ScanRecord extends NewScan {
+  readonly id: number;
+  readonly createdAt: string;
+  /** last status change (for a running scan: when this run started) */
+  readonly updatedAt: string;
+  readonly status: ScanStatus;
 }
 
 export interface ScanProgress {

@@ -28,6 +28,17 @@ export const COLUMN_SAFE_NAME = /^[a-z][a-z0-9_]{0,39}$/;
 export const eventsColumn = (detector: string): string => `events_${detector}`;
 export const fluxColumn = (target: string): string => `flux_${target}_cm2s`;
 
+/**
+ * Unit of an observable column: its FIXED_OBSERVABLES unit, 'cm^-2 s^-1' for a flux column, ''
+ * for expected events (a count) and for names that are not observables.
+ */
+export function observableUnit(name: string): string {
+  const fixed = FIXED_OBSERVABLES.find((o) => o.name === name);
+  if (fixed) return fixed.unit;
+  if (name.startsWith('flux_')) return 'cm^-2 s^-1';
+  return '';
+}
+
 /** Ordered numeric observable names for a scan with these detectors and targets (flags excluded). */
 export function numericObservableNames(detectors: readonly string[], targets: readonly string[]): string[] {
   return [

@@ -7,7 +7,7 @@ import type { Command } from 'commander';
 import { parsePoint, PARAMETERS, allowedText } from '../../physics/model.js';
 import { InvalidInputError, type Issue } from '../../physics/issue.js';
 import { prepare, evaluate } from '../../physics/evaluate.js';
-import { FIXED_OBSERVABLES } from '../../physics/observables.js';
+import { observableUnit } from '../../physics/observables.js';
 import { EMPTY_SETUP, type ScanPhysicsSetup } from '../../physics/setup.js';
 
 /** Splits `name=value` arguments; a malformed one is an issue naming it. */
@@ -33,12 +33,9 @@ export function parseAssignments(args: readonly string[]): { raw: Record<string,
   return { raw, issues };
 }
 
+/** The unit shown beside a value; expected events are labelled as such. */
 function unitOf(name: string): string {
-  const fixed = FIXED_OBSERVABLES.find((o) => o.name === name);
-  if (fixed) return fixed.unit;
-  if (name.startsWith('events_')) return 'events';
-  if (name.startsWith('flux_')) return 'cm^-2 s^-1';
-  return '';
+  return name.startsWith('events_') ? 'events' : observableUnit(name);
 }
 
 export function registerPoint(program: Command): void {

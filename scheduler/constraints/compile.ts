@@ -21,7 +21,7 @@ import { readFileSync, statSync } from 'node:fs';
 import path from 'node:path';
 import { InvalidInputError, type Issue } from '../../physics/issue.js';
 import { PARAMETERS } from '../../physics/model.js';
-import { FIXED_OBSERVABLES } from '../../physics/observables.js';
+import { observableUnit } from '../../physics/observables.js';
 import { feldmanCousinsUpperLimit, poissonUpperLimit } from '../../physics/direct/statistics.js';
 import { DEFAULT_HADRONIC, type Hadronic } from '../../physics/setup.js';
 import { compileExpression, type ExpressionScope } from '../expressions.js';
@@ -94,14 +94,6 @@ export function rescalePower(observable: string): 0 | 1 | 2 {
   if (/^sigma_s[id]_[pn]_cm2$/.test(observable) || observable.startsWith('events_')) return 1;
   if (observable === 'sigv0_cm3s' || /^flux_.+_cm2s$/.test(observable)) return 2;
   return 0;
-}
-
-function observableUnit(name: string): string {
-  const fixed = FIXED_OBSERVABLES.find((o) => o.name === name);
-  if (fixed) return fixed.unit;
-  if (name.startsWith('events_')) return '';
-  if (name.startsWith('flux_')) return 'cm^-2 s^-1';
-  return '';
 }
 
 function parameterUnit(name: string): string {

@@ -13,7 +13,7 @@ import path from 'node:path';
 import type Database from 'better-sqlite3';
 import { parseCurve } from '../constraints/curve-file.js';
 import { PARAMETERS } from '../../physics/model.js';
-import { FIXED_OBSERVABLES } from '../../physics/observables.js';
+import { observableUnit } from '../../physics/observables.js';
 import type { Overlay } from './render-plane.js';
 
 interface CurveConstraint {
@@ -62,12 +62,6 @@ function curveConstraints(db: Database.Database, scanId: number, set: string | n
 }
 
 const parameterUnit = (name: string): string => PARAMETERS.find((p) => p.name === name)?.unit ?? '';
-function observableUnit(name: string): string {
-  const fixed = FIXED_OBSERVABLES.find((o) => o.name === name);
-  if (fixed) return fixed.unit;
-  if (name.startsWith('flux_')) return 'cm^-2 s^-1';
-  return '';
-}
 
 /** The overlays for the plane (x, y), with notes for curves that could not be read. */
 export function limitCurveOverlays(

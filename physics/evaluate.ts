@@ -62,17 +62,16 @@ export function evaluate(point: ModelPoint, prepared: Prepared): Observables {
     sigma_sd_n_cm2: direct.sigmaSdNCm2,
     width_med_gev: widthMedGeV,
   };
-  prepared.setup.detectors.forEach((d, i) => {
-    values[eventsColumn(d.name)] = direct.eventsByDetector[i] ?? NaN;
-  });
-  prepared.setup.targets.forEach((t, i) => {
-    values[fluxColumn(t.name)] = indirect.fluxByTarget[i] ?? NaN;
-  });
-  const flags = new Set<string>([
-    ...validityFlags(point, widthMedGeV),
-    ...relic.flags,
-    ...direct.flags,
-    ...indirect.flags,
-  ]);
-  return Object.freeze({ values: Object.freeze(values), flags: [...flags].sort().join(',') });
+  const { detectors, targets } = prepared.setup;
+  for (let i = 0; i < detectors.length; i++) values[eventsColumn(detectors[i]!.name)] = direct.eventsByDetector[i] ?? NaN;
+  for (let i = 0; i < targets.length; i++) values[fluxColumn(targets[i]!.name)] = indirect.fluxByTarget[i] ?? NaN;
+  const flags = joinFlags([validityFlags(point, widthMedGeV), relic.flags, direct.flags, indirect.flags]);
+  return Object.freeze({ values: Object.freeze(values), flags });
+}
+
+/** The distinct flags of all stages, sorted, comma-joined ('' when none: the common case, no allocation). */
+function joinFlags(lists: readonly (readonly string[])[]): string {
+  const all: string[] = [];
+  for (const list of lists) for (const f of list) if (!all.includes(f)) all.push(f);
+  return all.length === 0 ? '' : all.sort().join(',');
 }

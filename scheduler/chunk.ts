@@ -15,6 +15,7 @@ import type { ModelPoint } from '../physics/model.js';
 import type { Observables } from '../physics/observables.js';
 import type { ScanPhysicsSetup } from '../physics/setup.js';
 import { PARAMETERS } from '../physics/model.js';
+import { InvalidInputError, type Issue } from '../physics/issue.js';
 import { PARAMETER_COLUMNS, Plan, decodeResolvedSpec, pointFromParams, type ChunkRange, type CompiledEquals, type ParamValue, type ScanSpec } from './plan.js';
 
 /** What prepare() returns, as far as the scheduler needs to know. */
@@ -66,6 +67,44 @@ export async function loadPhysicsEngine(moduleUrl: string = DEFAULT_PHYSICS_MODU
   if (typeof mod.prepare !== 'function' || typeof mod.evaluate !== 'function')
     throw new Error(`physics module ${moduleUrl} must export prepare(setup) and evaluate(point, prepared)`);
   return { prepare: mod.prepare, evaluate: mod.evaluate };
+}
+
+/** Why prepare() refused a scan's setup, as input issues (the CLI exits 2 with them). */
+export function setupIssues(err: unknown): readonly Issue[] {
+  if (err instanceof InvalidInputError) return err.issues;
+  const message = err instanceof Error ? err.message : String(err);
+  return [{ code: 'physics_setup', path: 'detectors/targets/halo', message: `the physics cannot prepare this scan: ${message}`, allowed: 'detectors, targets and halo the physics supports' }];
+}
+
+export interface Calibration {
+  readonly points: number;
+  readonly msPerPoint: number;
+  readonly errors: number;
+}
+
+/**
+ * Times real evaluations: after a short warm-up (first-call compilation), blocks of consecutive ids
+ * spread over the scan, as chunks see them (per-scan caches fill as in a run), until the budget is
+ * spent. About `budgetMs` of compute; the results are thrown away.
+ */
+export function calibrateEvaluator(evaluator: ChunkEvaluator, budgetMs: number, blocks = 6, blockSize = 8): Calibration {
+  const total = evaluator.totalPoints;
+  const n = Math.min(blockSize, total);
+  evaluator.evaluate({ chunk: 0, firstId: 0, n: Math.min(3, total) });
+  let points = 0;
+  let errors = 0;
+  let ms = 0;
+  for (let round = 0; ms < budgetMs && round < 8; round++) {
+    for (let b = 0; b < blocks && ms < budgetMs; b++) {
+      const first = Math.min(total - n, Math.floor(((b + (round + 0.5) / 8) * total) / blocks));
+      const r = evaluator.evaluate({ chunk: 0, firstId: first, n });
+      ms += r.evalMs;
+      points += n;
+      const flags = r.columns[r.columns.length - 1] as (string | null)[];
+      errors += flags.filter((f) => f?.startsWith('error=')).length;
+    }
+  }
+  return { points, msPerPoint: ms / points, errors };
 }
 
 /** Text stored in flags for a point that could not be evaluated. */

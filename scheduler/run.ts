@@ -3,10 +3,14 @@
  * only writer of the ledger.
  *
  * Order of operations, so that bad input never writes anything:
- *   1. validate the spec and prepare its physics once here (names of the observable columns, knobs);
+ *   1. validate the spec;
  *   2. look at an existing ledger readonly and decide: resume the scan with the same name and the
  *      same spec hash, create a new one (fresh ledger, or `--new`), or refuse (same name, different
- *      spec, different constants edition or knobs);
+ *      spec, different constants edition);
+ *   2b. prepare the physics where it will run: the embedded pool's threads start now (they report
+ *      the knobs; the first one calibrates a new scan's chunk size, warming its own compiled code),
+ *      so this thread never loads the physics; for workers elsewhere (Redis) it is prepared here.
+ *      A setup the physics refuses, or other knobs than a resumed scan's, is refused here;
  *   3. only then open the ledger for writing.
  * Resume is the same command again: chunks with a 'done' row are skipped, everything else runs.
  * SIGINT/SIGTERM stop dispatching and finish the chunks in flight (a second signal abandons them);
@@ -17,13 +21,14 @@ import { existsSync, readFileSync } from 'node:fs';
 import path from 'node:path';
 import { CONSTANTS_EDITION } from '../physics/constants.js';
 import { InvalidInputError, type Issue } from '../physics/issue.js';
-import { ChunkEvaluator, columnLayout, loadPhysicsEngine, type PhysicsEngine, type PreparedPhysics } from './chunk.js';
+import { ChunkEvaluator, calibrateEvaluator, columnLayout, loadPhysicsEngine, setupIssues, type Calibration, type PhysicsEngine, type PreparedPhysics } from './chunk.js';
 import { EmbeddedPool } from './embedded-pool.js';
 import { Ledger, LedgerReader, type ScanRecord, type ScanStatus } from './ledger.js';
 import type { ChunkRange, Plan } from './plan.js';
 import { createProgress, formatDuration, progressMode, type ProgressReporter } from './progress.js';
 import { canonicalJson, loadSpecFile, makePlan, resolvedSpecJson, specHash, type ScanSpec } from './spec.js';
 import type { Transport } from './transport.js';
+import { numericObservableNames } from '../physics/observables.js';
 import { compileConstraints, type CompiledConstraints } from './constraints/compile.js';
 import { formatSummary, judgeScan, type JudgeSummary } from './constraints/judge.js';
 import { contextFromSpec } from './constraints/scan-context.js';
@@ -80,6 +85,8 @@ export interface RunSummary {
 export const CHUNK_TARGET_MS = 1500;
 export const MIN_CHUNK = 8;
 export const MAX_CHUNK = 20_000;
+/** Compute timed to choose a new scan's chunk size: only its order of magnitude matters. */
+export const CALIBRATION_MS = 200;
 
 /** Package version plus the git commit of the sources, when they are in a git work tree. */
 export function codeVersion(): string {
@@ -100,42 +107,15 @@ export function preparePhysics(spec: ScanSpec, engine: PhysicsEngine): PreparedP
   try {
     return engine.prepare(spec.setup);
   } catch (err) {
-    if (err instanceof InvalidInputError) throw err;
-    const message = err instanceof Error ? err.message : String(err);
-    throw new InvalidInputError([{ code: 'physics_setup', path: 'detectors/targets/halo', message: `the physics cannot prepare this scan: ${message}`, allowed: 'detectors, targets and halo the physics supports' }]);
+    throw new InvalidInputError(setupIssues(err));
   }
 }
 
-export interface Calibration {
-  readonly points: number;
-  readonly msPerPoint: number;
-  readonly errors: number;
-}
+export type { Calibration };
 
-/**
- * Times real evaluations: after a short warm-up (first-call compilation), blocks of consecutive ids
- * spread over the scan, as chunks see them (per-scan caches fill as in a run), until the budget is
- * spent. Cheap to call: about `budgetMs` of compute.
- */
+/** Calibrates in this process (see calibrateEvaluator); `check` uses it, `run` calibrates in its first worker thread. */
 export async function calibrate(spec: ScanSpec, engine: PhysicsEngine, budgetMs = 600, blocks = 6, blockSize = 8): Promise<Calibration> {
-  const evaluator = await ChunkEvaluator.create(resolvedSpecJson(spec), engine);
-  const total = evaluator.totalPoints;
-  const n = Math.min(blockSize, total);
-  evaluator.evaluate({ chunk: 0, firstId: 0, n: Math.min(3, total) });
-  let points = 0;
-  let errors = 0;
-  let ms = 0;
-  for (let round = 0; ms < budgetMs && round < 8; round++) {
-    for (let b = 0; b < blocks && ms < budgetMs; b++) {
-      const first = Math.min(total - n, Math.floor(((b + (round + 0.5) / 8) * total) / blocks));
-      const r = evaluator.evaluate({ chunk: 0, firstId: first, n });
-      ms += r.evalMs;
-      points += n;
-      const flags = r.columns[r.columns.length - 1] as (string | null)[];
-      errors += flags.filter((f) => f?.startsWith('error=')).length;
-    }
-  }
-  return { points, msPerPoint: ms / points, errors };
+  return calibrateEvaluator(await ChunkEvaluator.create(resolvedSpecJson(spec), engine), budgetMs, blocks, blockSize);
 }
 
 /**
@@ -165,8 +145,8 @@ interface Decision {
   readonly warnings: string[];
 }
 
-/** Step 2: decides on a readonly view whether to resume, create, or refuse. */
-function decide(dbPath: string, spec: ScanSpec, hash: string, knobsJson: string, version: string, newScan: boolean): Decision {
+/** Step 2: decides on a readonly view whether to resume, create, or refuse (the knobs are checked by checkKnobs). */
+function decide(dbPath: string, spec: ScanSpec, hash: string, version: string, newScan: boolean): Decision {
   if (!existsSync(dbPath)) return { existing: null, warnings: [] };
   let reader: LedgerReader;
   try {
@@ -194,8 +174,6 @@ function decide(dbPath: string, spec: ScanSpec, hash: string, knobsJson: string,
     }
     if (match.constantsEdition !== CONSTANTS_EDITION)
       refuse({ code: 'constants_changed', path: '--db', message: `scan '${spec.name}' (id ${match.id}) was computed with constants ${match.constantsEdition}, this code has ${CONSTANTS_EDITION}; resuming would mix them. Use --new or another --db`, seen: CONSTANTS_EDITION, allowed: match.constantsEdition });
-    if (canonicalJson(JSON.parse(match.knobsJson)) !== canonicalJson(JSON.parse(knobsJson)))
-      refuse({ code: 'knobs_changed', path: '--db', message: `scan '${spec.name}' (id ${match.id}) was computed with other numerical knobs; resuming would mix them. Use --new or another --db`, seen: knobsJson, allowed: match.knobsJson });
     const warnings = match.codeVersion !== version ? [`note: scan ${match.id} was started by code ${match.codeVersion}; resuming with ${version}`] : [];
     return { existing: match, warnings };
   } finally {
@@ -221,6 +199,12 @@ export function* pendingChunks(reader: LedgerReader, scanId: number, plan: Plan,
   }
 }
 
+/** A resumed scan must have been computed with the same numerical knobs as this code's prepare() gives. */
+function checkKnobs(existing: ScanRecord | null, knobsJson: string): void {
+  if (existing && canonicalJson(JSON.parse(existing.knobsJson)) !== knobsJson)
+    refuse({ code: 'knobs_changed', path: '--db', message: `scan '${existing.name}' (id ${existing.id}) was computed with other numerical knobs; resuming would mix them. Use --new or another --db`, seen: knobsJson, allowed: existing.knobsJson });
+}
+
 function shellQuote(arg: string): string {
   return /^[A-Za-z0-9_./=:-]+$/.test(arg) ? arg : `'${arg.replace(/'/g, `'\\''`)}'`;
 }
@@ -233,26 +217,52 @@ export async function runScan(options: RunOptions): Promise<RunSummary> {
   if (options.workers !== undefined && (!Number.isInteger(options.workers) || options.workers < 1 || options.workers > 1024))
     refuse({ code: 'out_of_range', path: '--workers', message: 'workers must be an integer from 1 to 1024', seen: String(options.workers), allowed: '1 to 1024' });
 
-  // 1. validate and prepare (nothing written yet)
+  // 1. validate (nothing written yet)
   const spec = loadSpecFile(options.specPath);
-  const engine = await loadPhysicsEngine(options.physicsModule);
-  const prepared = preparePhysics(spec, engine);
   const constraints = compileSpecConstraints(spec, options.specPath);
   const resolved = resolvedSpecJson(spec);
   const hash = specHash(resolved);
-  const knobsJson = canonicalJson(prepared.knobs ?? {});
   const version = codeVersion();
   const dbPath = path.resolve(options.dbPath ?? `${spec.name}.db`);
 
   // 2. decide on a readonly view
-  const decision = decide(dbPath, spec, hash, knobsJson, version, options.newScan ?? false);
+  const decision = decide(dbPath, spec, hash, version, options.newScan ?? false);
   decision.warnings.forEach(log);
+  const calibrating = !decision.existing && options.chunkSize === undefined;
 
-  const transport =
-    options.transport ??
-    (options.redisUrl
-      ? await (await import('./redis/transport.js')).createRedisTransport({ url: options.redisUrl, dbPath, codeVersion: version, log })
-      : new EmbeddedPool({ workers: options.workers, physicsModule: options.physicsModule }));
+  // the physics is prepared where it runs: by the pool's threads (the first one also calibrates,
+  // which warms its compiled code instead of this thread's), or here for workers elsewhere
+  let transport: Transport;
+  let observableNames: readonly string[];
+  let knobsJson: string;
+  let calibration: Calibration | null = null;
+  let opened = false;
+  if (!options.transport && !options.redisUrl) {
+    observableNames = numericObservableNames(spec.setup.detectors.map((d) => d.name), spec.setup.targets.map((t) => t.name));
+    const pool = new EmbeddedPool({ workers: options.workers, physicsModule: options.physicsModule, calibrateMs: calibrating ? CALIBRATION_MS : 0 });
+    // the embedded pool serves this one scan: the spec hash names it well enough
+    await pool.open({ scanKey: `h${hash.slice(0, 12)}`, resolvedSpecJson: resolved, observableNames });
+    opened = true;
+    transport = pool;
+    knobsJson = canonicalJson(JSON.parse(pool.started!.knobsJson));
+    calibration = pool.started!.calibration;
+    try {
+      checkKnobs(decision.existing, knobsJson);
+    } catch (err) {
+      await pool.close();
+      throw err;
+    }
+  } else {
+    const engine = await loadPhysicsEngine(options.physicsModule);
+    const prepared = preparePhysics(spec, engine);
+    observableNames = prepared.observableNames;
+    knobsJson = canonicalJson(prepared.knobs ?? {});
+    checkKnobs(decision.existing, knobsJson);
+    transport =
+      options.transport ??
+      (await (await import('./redis/transport.js')).createRedisTransport({ url: options.redisUrl!, dbPath, codeVersion: version, log }));
+    if (calibrating) calibration = await calibrate(spec, engine, CALIBRATION_MS);
+  }
   const workers = transport instanceof EmbeddedPool ? transport.workers : 1;
   let chunkSize: number;
   if (decision.existing) {
@@ -262,14 +272,18 @@ export async function runScan(options: RunOptions): Promise<RunSummary> {
   } else if (options.chunkSize !== undefined) {
     chunkSize = options.chunkSize;
   } else {
-    // a short calibration: the chunk size only needs the order of magnitude of the cost per point
-    const cal = await calibrate(spec, engine, 200);
-    chunkSize = chooseChunkSize(cal.msPerPoint, makePlan(spec, 1).total, workers);
+    chunkSize = chooseChunkSize(calibration!.msPerPoint, makePlan(spec, 1).total, workers);
   }
   const plan = makePlan(spec, chunkSize);
 
   // 3. write
-  const ledger = Ledger.open(dbPath);
+  let ledger: Ledger;
+  try {
+    ledger = Ledger.open(dbPath);
+  } catch (err) {
+    await transport.close();
+    throw err;
+  }
   let progress: ProgressReporter | null = null;
   const removeSignals: (() => void)[] = [];
   try {
@@ -277,10 +291,10 @@ export async function runScan(options: RunOptions): Promise<RunSummary> {
       decision.existing ??
       ledger.createScan({
         name: spec.name, specJson: resolved, specHash: hash, codeVersion: version, constantsEdition: CONSTANTS_EDITION,
-        knobsJson, observables: prepared.observableNames, nPoints: plan.total, chunkSize, nChunks: plan.chunkCount,
+        knobsJson, observables: observableNames, nPoints: plan.total, chunkSize, nChunks: plan.chunkCount,
       });
     ledger.setStatus(scan.id, 'running');
-    const write = ledger.chunkWriter(scan.id, columnLayout(prepared.observableNames));
+    const write = ledger.chunkWriter(scan.id, columnLayout(observableNames));
     const before = ledger.progress(scan.id);
     const resumeArgs = ['darksieve', 'run', options.specPath, '--db', dbPath, ...(options.workers ? ['--workers', String(options.workers)] : [])];
     const resumeCommand = resumeArgs.map(shellQuote).join(' ');
@@ -309,7 +323,7 @@ export async function runScan(options: RunOptions): Promise<RunSummary> {
     }
 
     try {
-      await transport.open({ scanKey: `s${scan.id}-${hash.slice(0, 12)}`, resolvedSpecJson: resolved, observableNames: prepared.observableNames });
+      if (!opened) await transport.open({ scanKey: `s${scan.id}-${hash.slice(0, 12)}`, resolvedSpecJson: resolved, observableNames });
     } catch (err) {
       // the scan row stays (a rerun resumes it) but must not claim to be running
       ledger.setStatus(scan.id, 'interrupted');
@@ -382,6 +396,9 @@ export async function runScan(options: RunOptions): Promise<RunSummary> {
     };
     ledger.checkpoint();
     return summary;
+  } catch (err) {
+    await transport.close();
+    throw err;
   } finally {
     removeSignals.forEach((f) => f());
     ledger.close();

@@ -1,28 +1,45 @@
 /**
- * Worker thread of the embedded pool: prepares the scan's physics once, then evaluates the chunks the
- * pool sends and posts columnar results back (typed arrays transferred, not copied).
+ * Worker thread of the embedded pool: prepares the scan's physics once (and, when asked, times a
+ * calibration of the cost per point, which also warms this thread's compiled code), then evaluates
+ * the chunks the pool sends and posts columnar results back (typed arrays transferred, not copied).
  *
  * Messages in:  { type: 'chunk', range }
- * Messages out: { type: 'ready', observableNames } | { type: 'fatal', error }
+ * Messages out: { type: 'ready', observableNames, knobsJson, calibration } | { type: 'fatal', error, issues? }
  *               { type: 'result', result } | { type: 'error', chunk, error }
+ * `issues` comes with a fatal error when prepare() refused the scan's setup (bad input, not a crash).
  */
 import { parentPort, workerData } from 'node:worker_threads';
-import { ChunkEvaluator, loadPhysicsEngine } from '../scheduler/chunk.js';
+import { ChunkEvaluator, calibrateEvaluator, loadPhysicsEngine, setupIssues, type PhysicsEngine } from '../scheduler/chunk.js';
 import type { ChunkRange } from '../scheduler/plan.js';
 
 interface ThreadData {
   readonly resolvedSpecJson: string;
   readonly physicsModule?: string;
+  /** when > 0: time about this much compute after preparing and report it with 'ready' */
+  readonly calibrateMs?: number;
 }
 
 const port = parentPort!;
 const data = workerData as ThreadData;
 const describe = (err: unknown): string => (err instanceof Error ? err.message : String(err));
 
+let engine: PhysicsEngine;
 let evaluator: ChunkEvaluator;
 try {
-  evaluator = await ChunkEvaluator.create(data.resolvedSpecJson, await loadPhysicsEngine(data.physicsModule));
-  port.postMessage({ type: 'ready', observableNames: evaluator.prepared.observableNames });
+  engine = await loadPhysicsEngine(data.physicsModule);
+} catch (err) {
+  port.postMessage({ type: 'fatal', error: describe(err) });
+  process.exit(1);
+}
+try {
+  evaluator = await ChunkEvaluator.create(data.resolvedSpecJson, engine);
+} catch (err) {
+  port.postMessage({ type: 'fatal', error: describe(err), issues: setupIssues(err) });
+  process.exit(1);
+}
+try {
+  const calibration = data.calibrateMs ? calibrateEvaluator(evaluator, data.calibrateMs) : null;
+  port.postMessage({ type: 'ready', observableNames: evaluator.prepared.observableNames, knobsJson: JSON.stringify(evaluator.prepared.knobs ?? {}), calibration });
 } catch (err) {
   port.postMessage({ type: 'fatal', error: describe(err) });
   process.exit(1);

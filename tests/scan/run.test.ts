@@ -3,7 +3,7 @@
  * fake-physics.ts (fast): completeness, flagged errors, bit-identity across workers and chunk sizes,
  * resume, refusal of a changed spec, and validation that writes nothing.
  */
-import { readFileSync, writeFileSync } from 'node:fs';
+import { existsSync, readFileSync, writeFileSync } from 'node:fs';
 import path from 'node:path';
 import Database from 'better-sqlite3';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
@@ -12,6 +12,7 @@ import { runScan, type RunOptions } from '../../scheduler/run.js';
 import { FAKE_PHYSICS, pointRows, query, tempDir, writeSpec } from './helpers.js';
 
 const CRASH_PHYSICS = new URL('./crash-physics.ts', import.meta.url).href;
+const OTHER_KNOBS_PHYSICS = new URL('./other-knobs-physics.ts', import.meta.url).href;
 import { MALFORMED, malformed } from './malformed-specs.js';
 
 const spec = {
@@ -110,6 +111,33 @@ describe('run on the embedded pool', () => {
     expect(pointRows(db, 2).length).toBe(TOTAL);
     const tied = query<{ m_chi: number; m_med: number }>(db, 'SELECT m_chi, m_med FROM points WHERE scan_id = 2');
     for (const r of tied) expect(r.m_med).toBe(3 * r.m_chi);
+  });
+
+  it('without --chunk a new scan takes its chunk size from the first thread\'s calibration; results unchanged', async () => {
+    const db = path.join(tmp.dir, 'calibrated.db');
+    const s = await run({ dbPath: db, chunkSize: undefined });
+    // the stand-in physics is fast (far below 1.5 s per chunk): the spread sets the size, 4 chunks per worker
+    expect(query<{ chunk_size: number }>(db, 'SELECT chunk_size FROM scans')[0]!.chunk_size).toBe(TOTAL / (4 * 2));
+    expect(s.status).toBe('done');
+    expect(pointRows(db)).toEqual(reference);
+  });
+
+  it('a setup the physics refuses in the worker threads is bad input, and nothing is written', async () => {
+    const db = path.join(tmp.dir, 'refused.db');
+    const refused = writeSpec(tmp.dir, 'refused.json', { ...spec, detectors: [{ ...spec.detectors[0], name: 'xe_refused' }] });
+    const err = await runScan({ specPath: refused, dbPath: db, physicsModule: OTHER_KNOBS_PHYSICS, quiet: true, log: silent, workers: 2 }).catch((e: unknown) => e);
+    expect(err).toBeInstanceOf(InvalidInputError);
+    expect((err as InvalidInputError).issues[0]).toMatchObject({ path: 'detectors[0]', code: 'unsupported' });
+    expect(existsSync(db)).toBe(false);
+  });
+
+  it('refuses to resume a scan with physics of other knobs, leaving the ledger unchanged', async () => {
+    const db = path.join(tmp.dir, 'ref.db');
+    const before = readFileSync(db);
+    const err = await runScan({ specPath: specFile, dbPath: db, physicsModule: OTHER_KNOBS_PHYSICS, quiet: true, log: silent, workers: 1 }).catch((e: unknown) => e);
+    expect(err).toBeInstanceOf(InvalidInputError);
+    expect((err as InvalidInputError).issues[0]).toMatchObject({ code: 'knobs_changed', path: '--db', seen: '{"fake":2}' });
+    expect(readFileSync(db).equals(before)).toBe(true);
   });
 
   it('every malformed spec is refused with its field named and an existing ledger left byte for byte', async () => {

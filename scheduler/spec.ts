@@ -187,7 +187,7 @@ const KNOWN_KEYS: Record<string, readonly string[]> = {
 // ------------------------------------------------------------------ issue helpers
 
 /** `['constraints', 2, 'file']` -> `constraints[2].file` */
-export function formatPath(path: readonly PropertyKey[]): string {
+function formatPath(path: readonly PropertyKey[]): string {
   let out = '';
   for (const seg of path) {
     if (typeof seg === 'number') out += `[${seg}]`;
@@ -351,7 +351,7 @@ function resolveAxis(param: string, raw: unknown, sampling: Sampling, issues: Is
  * Compiles the `equals` axes in dependency order. Each may use fixed model parameters, sampled axes
  * and other equals axes; cycles are reported with their members.
  */
-export function compileEqualsAxes(
+function compileEqualsAxes(
   axes: readonly Axis[],
   model: Readonly<Record<string, ParamValue>>,
   issues: Issue[],

@@ -222,4 +222,3 @@ export function indirectObservables(point: ModelPoint, ann: Annihilation, prepar
   });
 }
 
-export { coneJFactor } from './jfactor.js';

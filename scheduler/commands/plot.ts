@@ -24,7 +24,7 @@ interface PlotFlags {
 }
 
 /** A whole number from a flag, or an issue naming the flag. */
-export function integerFlag(value: string | undefined, path: string, issues: Issue[], min = 0): number | undefined {
+function integerFlag(value: string | undefined, path: string, issues: Issue[], min = 0): number | undefined {
   if (value === undefined) return undefined;
   const n = Number(value);
   if (!Number.isInteger(n) || n < min) {

@@ -11,7 +11,7 @@ import { observableUnit } from '../../physics/observables.js';
 import { EMPTY_SETUP, type ScanPhysicsSetup } from '../../physics/setup.js';
 
 /** Splits `name=value` arguments; a malformed one is an issue naming it. */
-export function parseAssignments(args: readonly string[]): { raw: Record<string, string>; issues: Issue[] } {
+function parseAssignments(args: readonly string[]): { raw: Record<string, string>; issues: Issue[] } {
   const raw: Record<string, string> = {};
   const issues: Issue[] = [];
   for (const arg of args) {

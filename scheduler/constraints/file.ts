@@ -24,7 +24,7 @@ const MAX_FILE_BYTES = 1024 * 1024;
  * Makes zod issues of a constraints list specific: the allowed keys of the constraint's kind for
  * unknown keys, and the kind itself as the value seen for an unknown kind.
  */
-export function refineConstraintIssues(issues: Issue[], rawConstraints: unknown): Issue[] {
+function refineConstraintIssues(issues: Issue[], rawConstraints: unknown): Issue[] {
   const list = Array.isArray(rawConstraints) ? rawConstraints : [];
   return issues.map((issue) => {
     const m = /^constraints\[(\d+)\]\.(\w+)$/.exec(issue.path);

@@ -39,7 +39,7 @@ const KNOWN: Readonly<Record<string, QuantityLabel>> = {
 };
 
 /** The label of a ledger column; spec-defined detectors and targets get a generic symbol. */
-export function quantityLabel(column: string): QuantityLabel {
+function quantityLabel(column: string): QuantityLabel {
   const known = KNOWN[column];
   if (known) return known;
   const events = /^events_(.+)$/.exec(column);

@@ -62,7 +62,7 @@ function newDocument(): never {
 }
 
 /** Tick values for a log axis: powers of ten, thinned to at most `max`; 1-2-5 steps in short ranges. */
-export function logTicks([lo, hi]: [number, number], max = 8): number[] {
+function logTicks([lo, hi]: [number, number], max = 8): number[] {
   const e0 = Math.ceil(Math.log10(lo) - 1e-9);
   const e1 = Math.floor(Math.log10(hi) + 1e-9);
   if (e1 - e0 + 1 >= 2) {

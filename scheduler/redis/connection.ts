@@ -82,7 +82,7 @@ export function redisOptionsFromUrl(url: string, field = '--redis'): RedisOption
 }
 
 /** Options for a long-lived connection: BullMQ needs maxRetriesPerRequest null; reconnect forever, backing off to 2 s. */
-export function durableOptions(base: RedisOptions): RedisOptions {
+function durableOptions(base: RedisOptions): RedisOptions {
   return { ...base, maxRetriesPerRequest: null, retryStrategy: (times: number) => Math.min(100 * times, 2000) };
 }
 

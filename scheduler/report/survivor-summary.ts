@@ -36,7 +36,7 @@ function storedKinds(view: LedgerView, scanId: number, set: string): { kinds: Ma
   return { kinds, judgedAt: row.t };
 }
 
-export function summarizeSet(view: LedgerView, scanId: number, set: string): SetSummary {
+function summarizeSet(view: LedgerView, scanId: number, set: string): SetSummary {
   const columns = view.constraintColumns(scanId, set);
   const fails = columns.map((c) => `TOTAL(${quoteId(c)} = 0)`);
   const alone = columns.map((c) => {

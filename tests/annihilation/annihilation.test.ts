@@ -1,3 +1,9 @@
+/**
+ * Annihilation cross sections (physics/annihilation.ts): f fbar and mediator-pair channels against
+ * explicit-spinor numerics and mpmath (tests/fixtures/annihilation/generate_annihilation_fixtures.py),
+ * the test vectors and benchmark points of the shared notes indirect.md A3, the NR expansion of
+ * physics/annihilation-nr.ts far from resonance, known limits, conventions and edge cases.
+ */
 import { describe, expect, it } from 'vitest';
 import { buildAnnihilation, MEDIATOR_PAIR_CHANNEL } from '../../physics/annihilation.js';
 import { mediatorPairCoefficients, nrCoefficients } from '../../physics/annihilation-nr.js';

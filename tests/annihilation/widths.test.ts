@@ -1,3 +1,9 @@
+/**
+ * Mediator widths (physics/widths.ts): partial widths against explicit-spinor numerics and mpmath
+ * (tests/fixtures/annihilation/generate_annihilation_fixtures.py), the benchmark widths of the shared
+ * notes indirect.md A3, the gluon-loop amplitudes and their heavy- and light-quark limits, and the
+ * Majorana and threshold conventions.
+ */
 import { describe, expect, it } from 'vitest';
 import type { ModelPoint } from '../../physics/model.js';
 import { QUARKS } from '../../physics/constants.js';

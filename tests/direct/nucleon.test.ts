@@ -1,3 +1,8 @@
+/**
+ * Nucleon-level direct detection (physics/direct/nucleon.ts, hadronic.ts): the hadronic sets and
+ * their derived sums, per-nucleon SI/SD cross sections against the check values of the shared notes
+ * direct.md §2, coupling and mass scaling, Majorana conventions and the suppression flags.
+ */
 import { describe, expect, it } from 'vitest';
 import { BASE } from '../../physics/constants.js';
 import { SCALAR_SETS, SPIN_SETS, gluonFraction, scalarSet, spinSet, yukawaScalarBracket } from '../../physics/direct/hadronic.js';

@@ -1,3 +1,8 @@
+/**
+ * The direct-detection stage end to end (physics/direct/prepare.ts) on invented demo detectors:
+ * cache hits equal misses bit for bit, detector order, contact-limit and light-mediator scaling,
+ * SD events and flags, the bounded kernel memo, and errors that name the field.
+ */
 import { describe, expect, it } from 'vitest';
 import { directObservables, prepareDirect, KERNEL_MEMO_CAPACITY } from '../../physics/direct/index.js';
 import type { ModelPoint } from '../../physics/model.js';

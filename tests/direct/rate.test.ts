@@ -1,3 +1,9 @@
+/**
+ * Recoil rates (physics/direct/rate.ts, halo.ts, helm.ts, isotopes.ts): the Standard Halo Model
+ * eta(v_min) and the expected events against scipy (tests/fixtures/direct/make_direct_fixtures.py),
+ * the Helm form factor, kinematics, the Lewin & Smith 1996 exponential-spectrum limit, and the
+ * isotope and compound tables against the standard atomic weights.
+ */
 import { readFileSync } from 'node:fs';
 import { describe, expect, it } from 'vitest';
 import { BASE, C_KM_S, GEV2_TO_CM2 } from '../../physics/constants.js';

@@ -1,3 +1,8 @@
+/**
+ * Limit-setting statistics (physics/direct/statistics.ts): classical Poisson upper limits,
+ * Feldman-Cousins intervals and Yellin's maximum gap against scipy and mpmath
+ * (tests/fixtures/direct/make_statistics_fixtures.py) and the published tables named beside each check.
+ */
 import { readFileSync } from 'node:fs';
 import { describe, expect, it } from 'vitest';
 import {

@@ -1,3 +1,7 @@
+/**
+ * Automatic axis scale of plots (scheduler/plot/axis-scale.ts): when an axis goes logarithmic,
+ * zeros on log axes, explicit choices, and the padding of axis domains.
+ */
 import { describe, it, expect } from 'vitest';
 import { chooseScale, paddedDomain, type ColumnStats } from '../../scheduler/plot/axis-scale.js';
 

@@ -1,3 +1,7 @@
+/**
+ * Iso-lines by marching squares (scheduler/plot/marching-squares.ts): exact lines for linear fields,
+ * a closed circle within the interpolation error, saddle cells, missing corners and log-spaced axes.
+ */
 import { describe, it, expect } from 'vitest';
 import { isoLines, indexToValue } from '../../scheduler/plot/marching-squares.js';
 

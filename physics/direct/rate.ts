@@ -276,35 +276,41 @@ export function isotopeIntegrals(
           const sdTerm = spin ? common * thinShellFormFactorSq(qFm, iso.shellRadiusFm) : 0;
           siIntegral += siTerm;
           sdIntegral += sdTerm;
-          if (basis && common !== 0) {
-            // Chebyshev recurrence T_{k+1} = 2 x T_k - T_{k-1}, times each weight (E_lo/E)^a
-            const x = xScale * Math.log(e) - xShift;
-            const w1 = loKeV / e;
-            let tPrev = 1;
-            let t = 1;
-            for (let k = 0; k < count; k++) {
-              if (k > 0) {
-                const tNext = k === 1 ? x : 2 * x * t - tPrev;
-                tPrev = t;
-                t = tNext;
-              }
-              let w = t;
-              for (let a = 0; a < MOMENT_WEIGHTS; a++) {
-                if (a > 0 || k > 0) {
-                  const i = a * count + k;
-                  si[i] = si[i]! + siTerm * w;
-                  if (spin) sd[i] = sd[i]! + sdTerm * w;
-                }
-                w *= w1;
-              }
-            }
-          }
+          if (basis && common !== 0) addMomentTerms(si, sd, spin !== undefined, siTerm, sdTerm, xScale * Math.log(e) - xShift, loKeV / e, count);
         }
       }
     }
   }
   si[0] = siIntegral;
   if (spin) sd[0] = sdIntegral;
+}
+
+/**
+ * Adds one quadrature node's terms times T_k(x) (E_lo/E)^a to si and sd (isotopeIntegrals' layout,
+ * index a * count + k) for every k < count and a < MOMENT_WEIGHTS except (0, 0), whose sum the caller
+ * keeps apart. T_k by the recurrence T_{k+1} = 2 x T_k - T_{k-1}; w1 = E_lo / E.
+ */
+function addMomentTerms(
+  si: Float64Array, sd: Float64Array, spin: boolean, siTerm: number, sdTerm: number, x: number, w1: number, count: number,
+): void {
+  let tPrev = 1;
+  let t = 1;
+  for (let k = 0; k < count; k++) {
+    if (k > 0) {
+      const tNext = k === 1 ? x : 2 * x * t - tPrev;
+      tPrev = t;
+      t = tNext;
+    }
+    let w = t;
+    for (let a = 0; a < MOMENT_WEIGHTS; a++) {
+      if (a > 0 || k > 0) {
+        const i = a * count + k;
+        si[i] = si[i]! + siTerm * w;
+        if (spin) sd[i] = sd[i]! + sdTerm * w;
+      }
+      w *= w1;
+    }
+  }
 }
 
 /**

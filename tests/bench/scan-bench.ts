@@ -4,10 +4,13 @@
  *  - `run` end to end on the embedded pool with 1 and 2 workers over the same points, as points/s
  *    and as overhead against the physics-only rate times the worker count (target <= 5 %; on a
  *    2-core machine with other load the 2-worker figure mostly measures the load);
+ *  - `darksieve run` through the CLI in a fresh process on 1 worker, as users run it (the in-process
+ *    runs above share this process's already loaded modules): CPU of the whole process, all threads;
  *  - ledger ingest: rows/s of the scheduler's chunk writer (target >= 200k rows/s);
  *  - `buildScanLedger`: a 1e6-point ledger written through the real writer, reusable by other
  *    benches (survivors, judge, plot). Its observables are invented smooth functions, not physics.
  */
+import { spawnSync } from 'node:child_process';
 import { mkdtempSync, rmSync, writeFileSync } from 'node:fs';
 import Database from 'better-sqlite3';
 import { tmpdir } from 'node:os';
@@ -49,6 +52,23 @@ function sumEvalMs(file: string): number {
   } finally {
     db.close();
   }
+}
+
+const REPO = new URL('../..', import.meta.url);
+
+/**
+ * `node bin/darksieve.mjs run ARGS` in a fresh process (embedded pool, REDIS_URL cleared): wall seconds
+ * and the CPU seconds of the whole process, every thread, reported by the cpu-at-exit.mjs preload.
+ */
+export function cliRunCpu(args: readonly string[], cwd = REPO): { wallS: number; cpuS: number } {
+  const t0 = performance.now();
+  const r = spawnSync(process.execPath, ['--import', new URL('./cpu-at-exit.mjs', import.meta.url).href, new URL('bin/darksieve.mjs', REPO).pathname, 'run', ...args], {
+    cwd, env: { ...process.env, REDIS_URL: '' }, encoding: 'utf8',
+  });
+  const wallS = (performance.now() - t0) / 1000;
+  const m = /cpu-at-exit-us (\d+)/.exec(r.stderr);
+  if (r.status !== 0 || !m) throw new Error(`darksieve run ${args.join(' ')} failed (exit ${r.status}): ${r.stderr}`);
+  return { wallS, cpuS: Number(m[1]) / 1e6 };
 }
 
 /** Wall and CPU seconds of evaluating every point in this thread with a fresh evaluator. */
@@ -153,6 +173,11 @@ export async function benchScan(): Promise<{ lines: string[] }> {
           `(compute wall x workers vs the workers' own chunk evaluation time, ${(evalMs / 1000).toFixed(1)} s; physics-only took ${physics.wallS.toFixed(1)} s)`,
       );
     }
+    const cli = cliRunCpu([specFile, '--db', path.join(dir, 'cli-1.db'), '--workers', '1', '--quiet']);
+    lines.push(
+      `darksieve run through the CLI, fresh process, 1 worker: ${(total / cli.wallS).toFixed(0)} points/s end to end; ` +
+        `CPU ${cli.cpuS.toFixed(1)} s vs ${physics.cpuS.toFixed(1)} s physics only (CPU overhead ${(100 * (cli.cpuS / physics.cpuS - 1)).toFixed(1)} %; target <= 5 %)`,
+    );
     const observables = numericObservableNames(['xe_bench'], ['gc']);
     const ledger = Ledger.open(path.join(dir, 'ingest.db'));
     try {

@@ -91,7 +91,10 @@ CREATE TABLE IF NOT EXISTS points (
 ) WITHOUT ROWID;
 `;
 
-const quote = (name: string): string => `"${name.replace(/"/g, '""')}"`;
+/** Quotes an SQL identifier (a column name) for use in a statement. */
+export function quoteId(name: string): string {
+  return `"${name.replace(/"/g, '""')}"`;
+}
 const now = (): string => new Date().toISOString();
 
 interface ScanRow {
@@ -224,7 +227,7 @@ export class Ledger extends LedgerReader {
     const have = new Set((this.db.prepare('PRAGMA table_info(points)').all() as { name: string }[]).map((c) => c.name));
     const add = this.db.transaction(() => {
       layout.names.forEach((name, i) => {
-        if (!have.has(name)) this.db.exec(`ALTER TABLE points ADD COLUMN ${quote(name)} ${layout.kinds[i] === 'real' ? 'REAL' : 'TEXT'}`);
+        if (!have.has(name)) this.db.exec(`ALTER TABLE points ADD COLUMN ${quoteId(name)} ${layout.kinds[i] === 'real' ? 'REAL' : 'TEXT'}`);
       });
     });
     add();
@@ -238,7 +241,7 @@ export class Ledger extends LedgerReader {
     this.ensurePointColumns(layout);
     const width = layout.names.length;
     const insert = this.db.prepare(
-      `INSERT OR IGNORE INTO points (scan_id, point_id, ${layout.names.map(quote).join(', ')}) VALUES (?, ?${', ?'.repeat(width)})`,
+      `INSERT OR IGNORE INTO points (scan_id, point_id, ${layout.names.map(quoteId).join(', ')}) VALUES (?, ?${', ?'.repeat(width)})`,
     );
     const done = this.db.prepare(
       `INSERT INTO chunks (scan_id, chunk, first_id, n, status, attempts, finished_at, error, eval_ms)

@@ -14,6 +14,7 @@
 import type { Database } from 'better-sqlite3';
 import { InvalidInputError } from '../physics/issue.js';
 import { compileExpression } from './expressions.js';
+import { quoteId } from './ledger.js';
 
 export const OUTPUT_FORMATS = ['table', 'csv', 'json'] as const;
 export type OutputFormat = (typeof OUTPUT_FORMATS)[number];
@@ -30,8 +31,6 @@ export interface SurvivorQuery {
   /** most rows returned; undefined for all */
   readonly limit?: number;
 }
-
-const quote = (column: string): string => `"${column.replace(/"/g, '""')}"`;
 
 /** SQL function registered on the connection for the --where filter. */
 const WHERE_FUNCTION = 'darksieve_where';
@@ -52,10 +51,10 @@ export function survivorRows(db: Database, q: SurvivorQuery): IterableIterator<u
       }
       return evaluate(scope) === true ? 1 : 0;
     });
-    filter = ` AND ${WHERE_FUNCTION}(${names.map((n) => `p.${quote(n)}`).join(', ')}) = 1`;
+    filter = ` AND ${WHERE_FUNCTION}(${names.map((n) => `p.${quoteId(n)}`).join(', ')}) = 1`;
   }
   const limit = q.limit !== undefined ? ' LIMIT ?' : '';
-  const sql = `SELECT ${q.columns.map((c) => `p.${quote(c)}`).join(', ')}
+  const sql = `SELECT ${q.columns.map((c) => `p.${quoteId(c)}`).join(', ')}
     FROM verdicts v JOIN points p ON p.scan_id = v.scan_id AND p.point_id = v.point_id
     WHERE v.scan_id = ? AND v.constraint_set = ? AND v.survives = 1${filter}
     ORDER BY v.point_id${limit}`;

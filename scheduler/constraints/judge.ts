@@ -21,6 +21,7 @@
  */
 import type { Database } from 'better-sqlite3';
 import { InvalidInputError } from '../../physics/issue.js';
+import { quoteId } from '../ledger.js';
 import type { CompiledConstraints } from './compile.js';
 import { MAX_CONSTRAINTS } from './schema.js';
 
@@ -53,7 +54,6 @@ export interface JudgeSummary {
   readonly judgedAt: string;
 }
 
-const quote = (column: string): string => `"${column.replace(/"/g, '""')}"`;
 
 /** Creates the verdict tables if needed and adds a column for each constraint not seen before. */
 function ensureVerdictTables(db: Database, columns: readonly string[]): void {
@@ -65,7 +65,7 @@ function ensureVerdictTables(db: Database, columns: readonly string[]): void {
     points INTEGER, survivors INTEGER, summary_json TEXT, PRIMARY KEY (scan_id, name))`);
   const existing = new Set((db.prepare('SELECT name FROM pragma_table_info(?)').pluck().all('verdicts') as string[]));
   for (const c of columns) {
-    if (!existing.has(c)) db.exec(`ALTER TABLE verdicts ADD COLUMN ${quote(c)} INTEGER`);
+    if (!existing.has(c)) db.exec(`ALTER TABLE verdicts ADD COLUMN ${quoteId(c)} INTEGER`);
   }
 }
 
@@ -142,9 +142,9 @@ export function judgeScan(db: Database, scanId: number, set: string, compiled: C
   // subquery would call it once per reference to its result).
   const allPassed = nc === 0 ? 0 : BIT[nc - 1]! * 2 - 1;
   const judgeBatch = db.prepare(`WITH judged AS MATERIALIZED (
-      SELECT point_id, ${JUDGE_FUNCTION}(${inputs.map(quote).join(', ')}) AS mask FROM points
+      SELECT point_id, ${JUDGE_FUNCTION}(${inputs.map(quoteId).join(', ')}) AS mask FROM points
       WHERE scan_id = @scan AND point_id >= @lo AND point_id < @hi)
-    INSERT OR REPLACE INTO verdicts (scan_id, constraint_set, point_id, survives${columns.map((c) => `, ${quote(c)}`).join('')})
+    INSERT OR REPLACE INTO verdicts (scan_id, constraint_set, point_id, survives${columns.map((c) => `, ${quoteId(c)}`).join('')})
     SELECT @scan, @set, point_id, mask = ${allPassed}${columns.map((_, k) => `, (mask >> ${k}) & 1`).join('')} FROM judged`);
   // Batch edges walk the stored ids (sparse when chunks are missing), batchSize points per batch.
   const edge = db.prepare('SELECT point_id FROM points WHERE scan_id = ? AND point_id >= ? ORDER BY point_id LIMIT 1 OFFSET ?').pluck();

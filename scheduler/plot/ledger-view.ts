@@ -6,7 +6,7 @@
  */
 import fs from 'node:fs';
 import type Database from 'better-sqlite3';
-import { LedgerReader } from '../ledger.js';
+import { LedgerReader, quoteId } from '../ledger.js';
 import { InvalidInputError, type Issue } from '../../physics/issue.js';
 import { listSets } from '../constraints/judge.js';
 
@@ -160,9 +160,4 @@ export class LedgerView {
         seen: w.name, allowed: numeric.join(', '),
       }));
   }
-}
-
-/** Quotes an identifier for SQL; names always come from the ledger's own schema before use. */
-export function quoteId(name: string): string {
-  return `"${name.replace(/"/g, '""')}"`;
 }

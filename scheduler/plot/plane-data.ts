@@ -10,7 +10,7 @@
  * never passes that test; a grid scan's axes always do.
  */
 import type { LedgerView } from './ledger-view.js';
-import { quoteId } from './ledger-view.js';
+import { quoteId } from '../ledger.js';
 import {
   chooseScale, paddedDomain, toScaleSpace, fromScaleSpace,
   type ColumnStats, type ScaleChoice, type ScaleType,

@@ -12,7 +12,7 @@
 import { BASE } from '../../physics/constants.js';
 import { PARAMETER_NAMES } from '../../physics/model.js';
 import type { LedgerView } from './ledger-view.js';
-import { quoteId } from './ledger-view.js';
+import { quoteId } from '../ledger.js';
 import type { PlaneData } from './plane-data.js';
 import type { Overlay } from './render-plane.js';
 import { isoLines, indexToValue } from './marching-squares.js';

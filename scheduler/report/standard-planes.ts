@@ -5,7 +5,7 @@
  * holds only NULL in, is listed as skipped with the reason.
  */
 import type { LedgerView } from '../plot/ledger-view.js';
-import { quoteId } from '../plot/ledger-view.js';
+import { quoteId } from '../ledger.js';
 import { labelText } from '../plot/notation.js';
 
 export interface PlaneChoice {

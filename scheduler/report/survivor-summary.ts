@@ -5,7 +5,7 @@
  * stored definition when there is one (scheduler/constraints/judge.ts), else they are unknown.
  */
 import type { LedgerView } from '../plot/ledger-view.js';
-import { quoteId } from '../plot/ledger-view.js';
+import { quoteId } from '../ledger.js';
 
 export interface ConstraintTally {
   readonly name: string;

@@ -6,14 +6,20 @@
  *    2-core machine with other load the 2-worker figure mostly measures the load);
  *  - `darksieve run` through the CLI in a fresh process on 1 worker, as users run it (the in-process
  *    runs above share this process's already loaded modules): CPU of the whole process, all threads;
+ *  - threads: CPU per chunk in the pool and in bare worker threads (no pool, no scheduler) with 1 and 2
+ *    threads, to tell a pool cost (main thread, messages, SQLite) from the machine's (load, V8's own
+ *    background threads): process CPU per chunk, the evaluating thread's own CPU, the main thread's;
  *  - ledger ingest: rows/s of the scheduler's chunk writer (target >= 200k rows/s);
  *  - `buildScanLedger`: a 1e6-point ledger written through the real writer, reusable by other
  *    benches (survivors, judge, plot). Its observables are invented smooth functions, not physics.
  */
 import { spawnSync } from 'node:child_process';
-import { mkdtempSync, rmSync, writeFileSync } from 'node:fs';
+import { mkdtempSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
 import Database from 'better-sqlite3';
 import { tmpdir } from 'node:os';
+import { Worker } from 'node:worker_threads';
+import { EmbeddedPool } from '../../scheduler/embedded-pool.js';
+import type { ChunkRange } from '../../scheduler/plan.js';
 import path from 'node:path';
 import { ChunkEvaluator, columnLayout, loadPhysicsEngine, type ChunkResult, type Column } from '../../scheduler/chunk.js';
 import { Ledger } from '../../scheduler/ledger.js';
@@ -69,6 +75,62 @@ export function cliRunCpu(args: readonly string[], cwd = REPO): { wallS: number;
   const m = /cpu-at-exit-us (\d+)/.exec(r.stderr);
   if (r.status !== 0 || !m) throw new Error(`darksieve run ${args.join(' ')} failed (exit ${r.status}): ${r.stderr}`);
   return { wallS, cpuS: Number(m[1]) / 1e6 };
+}
+
+/** This thread's own CPU time, ms (Linux, 10 ms ticks). */
+function threadCpuMs(): number {
+  const f = readFileSync('/proc/thread-self/stat', 'utf8').split(') ')[1]!.split(' ');
+  return (Number(f[11]) + Number(f[12])) * 10;
+}
+
+const loadAverage = (): string => readFileSync('/proc/loadavg', 'utf8').split(' ')[0]!;
+
+/** Per-chunk CPU of the same 1500-point chunks through the pool and through bare threads, 1 and 2 threads. */
+export async function benchThreads(specJson: string, observables: readonly string[]): Promise<string[]> {
+  const n = 1500;
+  const ranges: ChunkRange[] = Array.from({ length: 8 }, (_, i) => ({ chunk: i, firstId: 2000 + 3000 * i, n }));
+  const lines: string[] = [];
+  for (const threads of [1, 2]) {
+    const pool = new EmbeddedPool({ workers: threads });
+    await pool.open({ scanKey: 'bench', resolvedSpecJson: specJson, observableNames: observables });
+    // the same warm-up as the bare threads get (2 small chunks are posted to each thread)
+    for (let k = 0; k < 2 * threads; k++) pool.dispatch({ chunk: 100 + k, firstId: 25 * k, n: 25 });
+    for (let k = 0; k < 2 * threads; k++) await pool.next();
+    const c0 = process.cpuUsage();
+    const m0 = threadCpuMs();
+    let wallMs = 0;
+    try {
+      ranges.forEach((r) => pool.dispatch(r));
+      for (const _ of ranges) {
+        const o = await pool.next();
+        if (o.kind !== 'result') throw new Error(o.error);
+        wallMs += o.result.evalMs;
+      }
+    } finally {
+      await pool.close();
+    }
+    const processMs = cpuSeconds(c0) * 1000;
+    const mainMs = threadCpuMs() - m0;
+    lines.push(`pool, ${threads} thread${threads > 1 ? 's' : ''}: per ${n}-point chunk ${(processMs / ranges.length).toFixed(0)} ms process CPU, main thread ${(mainMs / ranges.length).toFixed(0)} ms, wall in the thread ${(wallMs / ranges.length).toFixed(0)} ms (load ${loadAverage()})`);
+
+    const workers = Array.from({ length: threads }, (_, k) => new Worker(new URL('./bare-thread.mjs', import.meta.url), { workerData: { resolvedSpecJson: specJson, ranges: ranges.filter((_, i) => i % threads === k) } }));
+    try {
+      await Promise.all(workers.map((w) => new Promise((resolve) => w.once('message', resolve))));
+      const c1 = process.cpuUsage();
+      const out = (await Promise.all(workers.map((w) => {
+        const done = new Promise<{ wallMs: number; cpuMs: number }[]>((resolve) => w.once('message', resolve));
+        w.postMessage('go');
+        return done;
+      }))).flat();
+      const bareMs = cpuSeconds(c1) * 1000;
+      const own = out.reduce((a, x) => a + x.cpuMs, 0);
+      const wall = out.reduce((a, x) => a + x.wallMs, 0);
+      lines.push(`bare, ${threads} thread${threads > 1 ? 's' : ''}: per ${n}-point chunk ${(bareMs / ranges.length).toFixed(0)} ms process CPU, the thread's own ${(own / ranges.length).toFixed(0)} ms, wall ${(wall / ranges.length).toFixed(0)} ms (load ${loadAverage()})`);
+    } finally {
+      await Promise.all(workers.map((w) => w.terminate()));
+    }
+  }
+  return lines;
 }
 
 /** Wall and CPU seconds of evaluating every point in this thread with a fresh evaluator. */
@@ -179,6 +241,7 @@ export async function benchScan(): Promise<{ lines: string[] }> {
         `CPU ${cli.cpuS.toFixed(1)} s vs ${physics.cpuS.toFixed(1)} s physics only (CPU overhead ${(100 * (cli.cpuS / physics.cpuS - 1)).toFixed(1)} %; target <= 5 %)`,
     );
     const observables = numericObservableNames(['xe_bench'], ['gc']);
+    lines.push(...(await benchThreads(resolvedSpecJson(spec), observables)));
     const ledger = Ledger.open(path.join(dir, 'ingest.db'));
     try {
       const json = resolvedSpecJson(spec);

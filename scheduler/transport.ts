@@ -24,7 +24,7 @@ export interface ScanWork {
   readonly scanKey: string;
   /** the resolved spec (scheduler/spec.ts resolvedSpecJson) */
   readonly resolvedSpecJson: string;
-  /** observables the scheduler expects (from its own prepare()); workers must agree */
+  /** observables the scheduler expects (the spec's numeric observable names, or its own prepare()'s); workers must agree */
   readonly observableNames: readonly string[];
 }
 

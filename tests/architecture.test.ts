@@ -37,8 +37,8 @@ function resolveLocal(from: string, spec: string): string | null {
   return null;
 }
 
-/** Packages physics/ may use: pure functions, no I/O (mathjs's number-only build provides erf). */
-const PURE_PACKAGES = ['mathjs/number'];
+/** Packages physics/ may use: pure functions, no I/O (stdlib's erf). */
+const PURE_PACKAGES = ['@stdlib/math-base-special-erf'];
 
 const files = DIRS.flatMap((d) => (fs.existsSync(path.join(root, d)) ? sourceFiles(path.join(root, d)) : []));
 

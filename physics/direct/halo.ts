@@ -10,7 +10,7 @@
  *   x < z - y:          eta = [erf(x+y) - erf(x-y) - (4/sqrt(pi)) y e^{-z^2}] / (2 N_esc v0 y)
  *   z - y <= x < z + y: eta = [erf(z) - erf(x-y) - (2/sqrt(pi)) (z+y-x) e^{-z^2}] / (2 N_esc v0 y)
  *   x >= z + y:         eta = 0.
- * erf from mathjs (W. J. Cody's rational Chebyshev approximations, ~1e-16).
+ * erf from @stdlib/math-base-special-erf (the FreeBSD msun algorithm, < 1 ulp in double precision).
  *
  * Validity: isotropic SHM in the galactic frame with a sharp cut at v_esc; v_E < v_esc. The kink of
  * eta at v_min = v_esc - v_E is where rate integrals should be split.
@@ -18,7 +18,7 @@
  * tiny (the last ~1 km/s before v_esc + v_E). Checked against a direct 3-D integral (scipy fixture).
  * References: Lewin & Smith 1996, Astropart. Phys. 6, 87; Baxter et al. 2021, EPJC 81, 907.
  */
-import { erf } from 'mathjs/number';
+import erf from '@stdlib/math-base-special-erf';
 import type { LocalHalo } from '../setup.js';
 import { InvalidInputError } from '../issue.js';
 

@@ -32,7 +32,7 @@ function refineConstraintIssues(issues: Issue[], rawConstraints: unknown): Issue
     const item = list[Number(m[1])] as Record<string, unknown> | undefined;
     const kind = item && typeof item === 'object' ? item.kind : undefined;
     if (issue.code === 'unknown_key' && typeof kind === 'string' && (CONSTRAINT_KINDS as readonly string[]).includes(kind)) {
-      return { ...issue, message: `unknown key '${m[2]}' for a ${kind} constraint`, allowed: CONSTRAINT_KEYS[kind as ConstraintKind].join(', ') };
+      return { ...issue, message: `unknown key '${m[2]}' for a constraint of kind '${kind}'`, allowed: CONSTRAINT_KEYS[kind as ConstraintKind].join(', ') };
     }
     if (m[2] === 'kind' && issue.code === 'invalid_union') {
       return { ...issue, seen: kind === undefined ? '(missing)' : JSON.stringify(kind), allowed: CONSTRAINT_KINDS.join(', ') };

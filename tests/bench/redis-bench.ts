@@ -1,7 +1,8 @@
 /**
  * Redis transport speed against the embedded pool, on the same real-physics spec in one run (so the
- * ratios share the machine's load): points/s with 1 and 2 BullMQ worker processes (`darksieve
- * worker --concurrency 1`, spawned through the real CLI) and with 1 and 2 embedded threads.
+ * ratios share the machine's load): points/s of `darksieve worker` processes spawned through the
+ * real CLI (1 process of 1 thread, 2 of 1, 1 of 2: LAYOUTS) against an embedded pool of as many
+ * threads.
  *
  * The rate is read from the ledger: all points over the time from the start of the first chunk to
  * the end of the last. That leaves out start-up that does not grow with the scan (process and
@@ -24,7 +25,11 @@ const REPO = path.resolve(import.meta.dirname, '../..');
 const CHUNK = 1500;
 /** alternating embedded and Redis runs per worker count; the median ratio is reported (the machines are noisy) */
 const ROUNDS = 3;
-/** 50 x 2 x 10 x 15 = 15000 real points in 10 chunks of about 1 s of compute each (run.ts aims at 1.5 s) */
+/**
+ * 50 x 2 x 10 x 15 = 15000 real points in 10 chunks (run.ts aims at 1.5 s of compute per chunk; these
+ * took 0.15 to 0.6 s each on the 2-core development machine, so one-off costs of a scan, such as a
+ * worker starting later than another or the last chunks finishing unevenly, weigh on these figures)
+ */
 const SPEC = {
   name: 'redis-bench',
   model: { dm: 'dirac', g_chi: 1 },
@@ -56,11 +61,22 @@ function steadyRate(db: string, workers: number): { pointsPerS: number; chunks: 
   }
 }
 
-function startWorker(url: string, prefix: string): ChildProcess {
-  return spawn(process.execPath, [path.join(REPO, 'bin/darksieve.mjs'), 'worker', '--redis', url, '--concurrency', '1'], {
+function startWorker(url: string, prefix: string, concurrency: number): ChildProcess {
+  return spawn(process.execPath, [path.join(REPO, 'bin/darksieve.mjs'), 'worker', '--redis', url, '--concurrency', String(concurrency)], {
     cwd: REPO, env: { ...process.env, DARKSIEVE_REDIS_PREFIX: prefix }, stdio: 'ignore',
   });
 }
+
+/**
+ * Worker layouts compared with an embedded pool of the same number of threads: 2 processes of 1
+ * thread (as on two machines, but here they share 2 cores with the scheduler and redis-server) and
+ * 1 process of 2 threads (how one machine is served).
+ */
+const LAYOUTS: readonly { processes: number; concurrency: number }[] = [
+  { processes: 1, concurrency: 1 },
+  { processes: 2, concurrency: 1 },
+  { processes: 1, concurrency: 2 },
+];
 
 const median = (xs: number[]): number => [...xs].sort((a, b) => a - b)[Math.floor(xs.length / 2)]!;
 
@@ -79,10 +95,11 @@ export async function benchRedis(): Promise<{ lines: string[] }> {
   const prefixes: string[] = [];
   let run = 0;
   try {
-    for (const n of [1, 2]) {
+    for (const { processes, concurrency } of LAYOUTS) {
+      const n = processes * concurrency;
       const prefix = `bench-${randomUUID()}`;
       prefixes.push(prefix);
-      const workers = Array.from({ length: n }, () => startWorker(url, prefix));
+      const workers = Array.from({ length: processes }, () => startWorker(url, prefix, concurrency));
       const embedded: number[] = [];
       const redis: number[] = [];
       const idle = { embedded: [] as number[], redis: [] as number[] };
@@ -106,7 +123,9 @@ export async function benchRedis(): Promise<{ lines: string[] }> {
       }
       const ratios = redis.map((r, i) => r / embedded[i]!);
       const fmt = (xs: number[]) => xs.map((x) => x.toFixed(0)).join(', ');
-      lines.push(`${n} worker${n === 1 ? '' : 's'}: embedded pool ${fmt(embedded)} points/s; Redis (${n} \`darksieve worker --concurrency 1\` process${n === 1 ? '' : 'es'}) ${fmt(redis)} points/s`);
+      lines.push(
+        `${n} thread${n === 1 ? '' : 's'}: embedded pool ${fmt(embedded)} points/s; Redis (${processes} \`darksieve worker --concurrency ${concurrency}\` process${processes === 1 ? '' : 'es'}) ${fmt(redis)} points/s`,
+      );
       lines.push(`   Redis / embedded, median of ${ROUNDS} paired runs: ${median(ratios).toFixed(3)} (pairs ${ratios.map((x) => x.toFixed(2)).join(', ')}; target >= 0.95)`);
       const pct = (xs: number[]) => `${(100 * median(xs)).toFixed(1)} %`;
       lines.push(`   worker wall time not spent evaluating (median): embedded ${pct(idle.embedded)}, Redis ${pct(idle.redis)} (target < 5 % on an idle machine)`);

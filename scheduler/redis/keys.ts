@@ -10,6 +10,9 @@
  *   key     <prefix>:darksieve:worker:<id>       JSON WorkerHeartbeat, expires unless refreshed
  *   key     <prefix>:darksieve:workers           sorted set: worker id -> expiry time (ms), so live
  *                                                workers are found without scanning the key space
+ *   channel <prefix>:darksieve:announce          pub/sub: a scheduler publishes its queue name when it
+ *                                                announces a scan, so workers take it up at once (the
+ *                                                workers' poll still finds it if the message is lost)
  *
  * The ledger tag distinguishes two ledgers that hold the same scan id and spec (two users, or the
  * same spec run into two files) on one Redis: it hashes the scheduler's host name and the ledger's
@@ -40,6 +43,7 @@ export const scanSetKey = (prefix: string): string => `${prefix}:darksieve:scans
 export const scanKeyOf = (prefix: string, queue: string): string => `${prefix}:darksieve:scan:${queue}`;
 export const workerKeyOf = (prefix: string, id: string): string => `${prefix}:darksieve:worker:${id}`;
 export const workerSetKey = (prefix: string): string => `${prefix}:darksieve:workers`;
+export const announceChannel = (prefix: string): string => `${prefix}:darksieve:announce`;
 
 /** What a scheduler publishes about its scan so that workers can prepare it. */
 export interface ScanAnnouncement {

@@ -31,7 +31,7 @@ import type { ChunkRange } from '../plan.js';
 import { decodeChunkResult, type ChunkOutcome, type EncodedChunkResult, type ScanWork, type Transport } from '../transport.js';
 import { bullConnection, openClient, probeRedis, redactRedisUrl, redisOptionsFromUrl, redisPrefix, serverRunId } from './connection.js';
 import {
-  chunkJobId, ledgerTag, liveWorkers, resultQueueName, scanKeyOf, scanSetKey, workQueueName,
+  announceChannel, chunkJobId, ledgerTag, liveWorkers, resultQueueName, scanKeyOf, scanSetKey, workQueueName,
   type ChunkJobData, type ScanAnnouncement,
 } from './keys.js';
 
@@ -207,7 +207,11 @@ export class RedisTransport implements Transport {
       queue: this.queueName, scanKey: work.scanKey, ledgerTag: this.opts.ledgerTag, resolvedSpecJson: work.resolvedSpecJson,
       observableNames: work.observableNames, codeVersion: this.opts.codeVersion, announcedAt: new Date().toISOString(),
     };
-    await this.client!.multi().set(scanKeyOf(this.opts.prefix, this.queueName), JSON.stringify(a)).sadd(scanSetKey(this.opts.prefix), this.queueName).exec();
+    await this.client!.multi()
+      .set(scanKeyOf(this.opts.prefix, this.queueName), JSON.stringify(a))
+      .sadd(scanSetKey(this.opts.prefix), this.queueName)
+      .publish(announceChannel(this.opts.prefix), this.queueName)
+      .exec();
   }
 
   private async unannounce(): Promise<void> {

@@ -3,8 +3,8 @@
  * prepares each one once, takes its chunk jobs and sends the results back through the scan's
  * results queue.
  *
- * CPU work never runs on this process's event loop. Each served scan owns an EmbeddedPool of
- * `concurrency` worker threads (the same thread entry and chunk evaluator as the embedded
+ * CPU work never runs on this process's event loop. Each served scan owns `concurrency` worker
+ * threads (EmbeddedPools of one thread: the same thread entry and chunk evaluator as the embedded
  * transport), and the BullMQ processor only hands the chunk to a thread and awaits it. The event
  * loop therefore stays free to renew job locks however long a chunk takes, so a busy worker never
  * loses its lock and no chunk runs twice unnoticed (stack.md §1.3 shows what happens otherwise).
@@ -31,7 +31,7 @@ import type { ChunkRange } from '../plan.js';
 import { encodeChunkResult, type ChunkOutcome } from '../transport.js';
 import { bullConnection, openClient, redactRedisUrl, redisOptionsFromUrl, serverRunId } from './connection.js';
 import {
-  resultQueueName, scanKeyOf, scanSetKey, workerKeyOf, workerSetKey,
+  announceChannel, liveWorkers, resultQueueName, scanKeyOf, scanSetKey, workerKeyOf, workerSetKey,
   type ChunkJobData, type ScanAnnouncement, type WorkerHeartbeat,
 } from './keys.js';
 
@@ -49,7 +49,9 @@ export interface WorkerServiceOptions {
   readonly stalledIntervalMs?: number;
   /**
    * chunks taken beyond the threads, waiting in this worker so a thread never idles through the Redis
-   * round trips between chunks; default 1. Their locks are renewed like the running ones.
+   * round trips between chunks; default one per thread (the pool posts a waiting chunk to each thread,
+   * as in the embedded transport: with fewer, a thread that finishes without one waits a round trip).
+   * Their locks are renewed like the running ones; near the end of a scan none are taken (adjustPrefetch).
    */
   readonly prefetch?: number;
   /** stalls (killed workers) a chunk survives before it fails; default 3 */
@@ -63,29 +65,68 @@ export interface WorkerServiceOptions {
   readonly log?: (line: string) => void;
 }
 
-/** One scan being served: its prepared thread pool, its BullMQ worker and its results producer. */
+type ServiceSettings = Required<Omit<WorkerServiceOptions, 'log' | 'physicsModule'>> & { physicsModule?: string };
+
+/** What a ScanServer needs from its WorkerService. */
+interface ServerContext {
+  readonly workerId: string;
+  readonly o: ServiceSettings;
+  readonly connection: ConnectionOptions;
+  /** the service's own client, for the queue-length check */
+  readonly client: Redis;
+  /** threads of all live workers (from their heartbeats), at least this worker's */
+  readonly clusterThreads: () => number;
+  readonly onChunkDone: () => void;
+  readonly onError: (err: Error) => void;
+}
+
+/** One evaluation thread (a pool of one) and the chunks given to it and not yet answered. */
+interface Lane {
+  readonly pool: EmbeddedPool;
+  inFlight: number;
+}
+
+/**
+ * One pool of one thread per slot, rather than one pool of `concurrency` threads: the server itself
+ * gives each chunk to the thread with the fewest in hand. A shared pool posts a chunk to the first
+ * thread with room for it, which may be busy while another has none, so near the end of a scan
+ * one thread idles while the last chunk waits behind another's (measured with the Redis bench,
+ * 1 worker of 2 threads: ~300 ms of a 1.5 s scan).
+ */
+async function openLanes(a: ScanAnnouncement, o: ServiceSettings): Promise<Lane[]> {
+  const pools = Array.from({ length: o.concurrency }, () => new EmbeddedPool({ workers: 1, maxAttempts: 1, physicsModule: o.physicsModule }));
+  const opened = await Promise.allSettled(pools.map((p) => p.open({ scanKey: a.scanKey, resolvedSpecJson: a.resolvedSpecJson, observableNames: a.observableNames })));
+  const failed = opened.find((r): r is PromiseRejectedResult => r.status === 'rejected');
+  if (failed) {
+    await Promise.all(pools.map((p) => p.close()));
+    throw failed.reason;
+  }
+  return pools.map((pool) => ({ pool, inFlight: 0 }));
+}
+
+/** One scan being served: its prepared threads, its BullMQ worker and its results producer. */
 class ScanServer {
   private readonly waiters = new Map<number, ((o: ChunkOutcome) => void)[]>();
   private bull: Worker<ChunkJobData> | null = null;
   private results: Queue | null = null;
   private stopped = false;
+  /** the work queue's list of waiting jobs (BullMQ's key layout, queue-keys.js) */
+  private readonly waitKey: string;
 
   constructor(
     readonly queue: string,
-    private readonly pool: EmbeddedPool,
-    private readonly onChunkDone: () => void,
-  ) {}
+    private readonly lanes: readonly Lane[],
+    private readonly ctx: ServerContext,
+  ) {
+    this.waitKey = `${ctx.o.prefix}:${queue}:wait`;
+  }
 
-  static async start(
-    workerId: string, a: ScanAnnouncement, o: Required<Omit<WorkerServiceOptions, 'log' | 'physicsModule'>> & { physicsModule?: string },
-    connection: ConnectionOptions, onChunkDone: () => void, onError: (err: Error) => void,
-  ): Promise<ScanServer> {
-    const pool = new EmbeddedPool({ workers: o.concurrency, maxAttempts: 1, physicsModule: o.physicsModule });
-    await pool.open({ scanKey: a.scanKey, resolvedSpecJson: a.resolvedSpecJson, observableNames: a.observableNames });
-    const server = new ScanServer(a.queue, pool, onChunkDone);
+  static async start(a: ScanAnnouncement, ctx: ServerContext): Promise<ScanServer> {
+    const { o, connection, onError, workerId } = ctx;
+    const server = new ScanServer(a.queue, await openLanes(a, o), ctx);
     server.results = new Queue(resultQueueName(a.queue), { connection, prefix: o.prefix, streams: { events: { maxLen: 50 } } });
     server.results.on('error', onError);
-    void server.pump();
+    for (const lane of server.lanes) void server.pump(lane);
     server.bull = new Worker<ChunkJobData>(a.queue, (job) => server.process(job), {
       // the name becomes each job's processedBy, so a chunk can be traced to the worker holding it
       name: workerId, connection, prefix: o.prefix, concurrency: o.concurrency + o.prefetch, lockDuration: o.lockDurationMs,
@@ -95,10 +136,11 @@ class ScanServer {
     return server;
   }
 
-  /** Routes pool outcomes to the jobs waiting for them. */
-  private async pump(): Promise<void> {
+  /** Routes a thread's outcomes to the jobs waiting for them. */
+  private async pump(lane: Lane): Promise<void> {
     while (!this.stopped) {
-      const outcome = await this.pool.next();
+      const outcome = await lane.pool.next();
+      lane.inFlight--;
       const chunk = outcome.kind === 'result' ? outcome.result.chunk : outcome.range.chunk;
       const list = this.waiters.get(chunk);
       const resolve = list?.shift();
@@ -112,7 +154,9 @@ class ScanServer {
       const list = this.waiters.get(range.chunk) ?? [];
       list.push(resolve);
       this.waiters.set(range.chunk, list);
-      this.pool.dispatch(range);
+      const lane = this.lanes.reduce((best, l) => (l.inFlight < best.inFlight ? l : best));
+      lane.inFlight++;
+      lane.pool.dispatch(range);
     });
   }
 
@@ -120,9 +164,30 @@ class ScanServer {
     const { chunk, firstId, n } = job.data;
     const outcome = await this.evaluate({ chunk, firstId, n });
     if (outcome.kind === 'failed') throw new Error(outcome.error);
-    await this.results!.add('result', { chunk, result: encodeChunkResult(outcome.result) }, { removeOnComplete: true, removeOnFail: false });
-    this.onChunkDone();
+    const sent = this.results!.add('result', { chunk, result: encodeChunkResult(outcome.result) }, { removeOnComplete: true, removeOnFail: false });
+    await Promise.all([sent, this.adjustPrefetch()]);
+    this.ctx.onChunkDone();
     return { n, evalMs: outcome.result.evalMs };
+  }
+
+  /**
+   * Prefetch only while the queue still holds a chunk for every thread serving it. Near the end of a
+   * scan a chunk taken as prefetch waits behind this worker's running chunk while a thread elsewhere
+   * (or another of this worker's) frees first and finds the queue empty: the scan then ends up to a
+   * chunk later than it must. Without prefetch a freed thread waits one Redis round trip for its
+   * next chunk, which is what the tail costs instead. Runs before BullMQ fetches this job's
+   * successor (its concurrency decides whether it does); a failed check leaves the setting as it is.
+   */
+  private async adjustPrefetch(): Promise<void> {
+    const { concurrency, prefetch } = this.ctx.o;
+    if (prefetch === 0) return;
+    try {
+      const waiting = await this.ctx.client.llen(this.waitKey);
+      const want = concurrency + (waiting >= this.ctx.clusterThreads() ? prefetch : 0);
+      if (this.bull && this.bull.concurrency !== want) this.bull.concurrency = want;
+    } catch {
+      // Redis unreachable: BullMQ reports it through the worker's error event
+    }
   }
 
   /** Graceful: finishes the chunks in hand (their results are sent); `force` abandons them. */
@@ -135,7 +200,7 @@ class ScanServer {
     }
     this.waiters.clear();
     await this.results?.close();
-    await this.pool.close();
+    await Promise.all(this.lanes.map((l) => l.pool.close()));
   }
 }
 
@@ -153,13 +218,19 @@ export class WorkerService {
   private polling = false;
   private runId = '';
   private chunksDone = 0;
+  /** threads of the live workers at the last poll */
+  private clusterThreads = 0;
+  /** receives the schedulers' announcements, so a new scan is taken up at once rather than at the next poll */
+  private subscriber: Redis | null = null;
+  /** an announcement arrived during a poll: poll again when it ends */
+  private repoll = false;
   private readonly startedAt = new Date().toISOString();
   private closed = false;
   private lastError = '';
 
   constructor(options: WorkerServiceOptions) {
     if (!Number.isInteger(options.concurrency) || options.concurrency < 1) throw new RangeError(`concurrency must be a positive integer, got ${options.concurrency}`);
-    this.o = { lockDurationMs: 15_000, stalledIntervalMs: 10_000, prefetch: 1, maxStalledCount: 3, pollMs: 1000, heartbeatMs: 2000, ...options };
+    this.o = { lockDurationMs: 15_000, stalledIntervalMs: 10_000, prefetch: options.concurrency, maxStalledCount: 3, pollMs: 1000, heartbeatMs: 2000, ...options };
     this.log = options.log ?? ((line) => process.stderr.write(`${line}\n`));
     this.connection = bullConnection(redisOptionsFromUrl(options.url));
     this.id = `${hostname()}-${process.pid}-${randomBytes(3).toString('hex')}`;
@@ -178,6 +249,9 @@ export class WorkerService {
   async start(): Promise<void> {
     this.client = openClient(redisOptionsFromUrl(this.o.url), (err) => this.noteError(err));
     this.runId = await serverRunId(this.client);
+    this.subscriber = openClient(redisOptionsFromUrl(this.o.url), (err) => this.noteError(err));
+    this.subscriber.on('message', () => void this.poll());
+    await this.subscriber.subscribe(announceChannel(this.o.prefix));
     await this.heartbeat();
     this.log(`worker ${this.id}: ${this.o.concurrency} thread${this.o.concurrency === 1 ? '' : 's'} per scan, waiting for scans on ${redactRedisUrl(this.o.url)}`);
     this.heartbeatTimer = setInterval(() => void this.heartbeat().catch((err: Error) => this.noteError(err)), this.o.heartbeatMs);
@@ -191,6 +265,7 @@ export class WorkerService {
     this.closed = true;
     if (this.pollTimer) clearInterval(this.pollTimer);
     if (this.heartbeatTimer) clearInterval(this.heartbeatTimer);
+    this.subscriber?.disconnect();
     await Promise.all([...this.servers.values()].map((s) => s.stop(force)));
     this.servers.clear();
     if (this.client) {
@@ -214,11 +289,16 @@ export class WorkerService {
 
   /** Discovery: start serving announced scans, stop serving withdrawn ones, restart all after a Redis restart. */
   private async poll(): Promise<void> {
-    if (this.polling || this.closed) return;
+    if (this.closed) return;
+    if (this.polling) {
+      this.repoll = true;
+      return;
+    }
     this.polling = true;
     try {
       const client = this.client!;
       const runId = await serverRunId(client);
+      this.clusterThreads = (await liveWorkers(client, this.o.prefix)).reduce((sum, w) => sum + w.concurrency, 0);
       if (runId !== this.runId) {
         this.runId = runId;
         this.log('Redis restarted; reconnecting every served scan');
@@ -245,13 +325,20 @@ export class WorkerService {
     } finally {
       this.polling = false;
     }
+    if (this.repoll) {
+      this.repoll = false;
+      await this.poll();
+    }
   }
 
   private async serve(a: ScanAnnouncement): Promise<void> {
     if (a.codeVersion !== this.o.codeVersion)
       this.log(`warning: scan ${a.queue} was started by code ${a.codeVersion}, this worker runs ${this.o.codeVersion}; results are bit-identical only when the physics code is the same`);
     try {
-      const server = await ScanServer.start(this.id, a, this.o, this.connection, () => this.chunksDone++, (err) => this.noteError(err));
+      const server = await ScanServer.start(a, {
+        workerId: this.id, o: this.o, connection: this.connection, client: this.client!, clusterThreads: () => Math.max(this.clusterThreads, this.o.concurrency),
+        onChunkDone: () => this.chunksDone++, onError: (err) => this.noteError(err),
+      });
       if (this.closed) {
         await server.stop(true);
         return;

@@ -1,7 +1,8 @@
 /**
  * Scans through BullMQ on the real Redis: the same rows bit for bit as the embedded pool, clean-up
  * of the scan's queues, a chunk that fails every attempt recorded as failed while the scan goes on,
- * and a resume that retries it. Stand-in physics (tests/scan/fake-physics.ts) keeps this fast.
+ * a resume that retries it, and a worker taking up a new scan from its announcement message.
+ * Stand-in physics (tests/scan/fake-physics.ts) keeps this fast.
  */
 import path from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
@@ -9,7 +10,7 @@ import { runScan, type RunOptions } from '../../scheduler/run.js';
 import { RedisTransport } from '../../scheduler/redis/transport.js';
 import { WorkerService } from '../../scheduler/redis/worker-service.js';
 import { FAKE_PHYSICS, pointRows, query, tempDir, writeSpec } from '../scan/helpers.js';
-import { CRASHY_PHYSICS, MECH_SPEC, MECH_TOTAL, TEST_REDIS_URL, announcedScans, cleanupPrefix, keysUnder, newPrefix, redisAvailable } from './helpers.js';
+import { CRASHY_PHYSICS, MECH_SPEC, MECH_TOTAL, TEST_REDIS_URL, announcedScans, cleanupPrefix, keysUnder, newPrefix, redisAvailable, waitFor } from './helpers.js';
 
 const available = await redisAvailable();
 
@@ -94,6 +95,29 @@ describe.skipIf(!available)('scans through Redis (BullMQ)', () => {
       expect(pointRows(db)).toEqual(reference);
     } finally {
       await good.close();
+    }
+  });
+
+  it('a worker takes up a newly announced scan at once, without waiting for its discovery poll', async () => {
+    const p = prefix();
+    // the poll runs once at start (no scan yet) and then not for 10 minutes: only the announcement
+    // message can bring this scan to the worker
+    const worker = new WorkerService({ url: TEST_REDIS_URL, prefix: p, concurrency: 1, codeVersion: 'test', physicsModule: FAKE_PHYSICS, pollMs: 600_000, log: silent });
+    await worker.start();
+    const db = path.join(tmp.dir, 'announced.db');
+    const t = transport(p);
+    try {
+      const scan = run(db, t);
+      const served = await waitFor('the worker to serve the announced scan', () => worker.serving.length > 0, 3000).catch(async (err: Error) => {
+        await t.close();
+        throw err;
+      });
+      expect(served).toBe(true);
+      const s = await scan;
+      expect(s.status).toBe('done');
+      expect(pointRows(db)).toEqual(reference);
+    } finally {
+      await worker.close();
     }
   });
 });

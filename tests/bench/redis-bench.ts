@@ -16,10 +16,10 @@ import { tmpdir } from 'node:os';
 import path from 'node:path';
 import Database from 'better-sqlite3';
 import { runScan } from '../../scheduler/run.js';
-import { probeRedis } from '../../scheduler/redis/connection.js';
-import { ledgerTag } from '../../scheduler/redis/keys.js';
+import { openClient, probeRedis, redisOptionsFromUrl } from '../../scheduler/redis/connection.js';
+import { ledgerTag, liveWorkers } from '../../scheduler/redis/keys.js';
 import { RedisTransport } from '../../scheduler/redis/transport.js';
-import { cleanupPrefix, exited } from '../redis/helpers.js';
+import { cleanupPrefix, exited, waitFor } from '../redis/helpers.js';
 
 const REPO = path.resolve(import.meta.dirname, '../..');
 const CHUNK = 1500;
@@ -100,6 +100,13 @@ export async function benchRedis(): Promise<{ lines: string[] }> {
       const prefix = `bench-${randomUUID()}`;
       prefixes.push(prefix);
       const workers = Array.from({ length: processes }, () => startWorker(url, prefix, concurrency));
+      // the first embedded run must not share the cores with the workers' start-up (module loading)
+      const client = openClient(redisOptionsFromUrl(url), () => {});
+      try {
+        await waitFor('the bench workers to report', async () => (await liveWorkers(client, prefix)).length === processes, 30_000);
+      } finally {
+        client.disconnect();
+      }
       const embedded: number[] = [];
       const redis: number[] = [];
       const idle = { embedded: [] as number[], redis: [] as number[] };

@@ -196,14 +196,21 @@ export class EmbeddedPool implements Transport {
     }
   }
 
+  /**
+   * Hands queued chunks to the threads, one at a time to the thread with the fewest in hand, so the
+   * last chunks of a scan never wait behind a busy thread while another thread is idle.
+   */
   private feed(): void {
     if (this.closed) return;
-    for (const slot of this.slots) {
-      while (slot.posted.length < PER_THREAD && this.queue.length > 0) {
-        const range = this.queue.shift()!;
-        slot.posted.push(range);
-        slot.worker.postMessage({ type: 'chunk', range });
+    while (this.queue.length > 0) {
+      let target: Slot | undefined;
+      for (const slot of this.slots) {
+        if (slot.posted.length < PER_THREAD && (!target || slot.posted.length < target.posted.length)) target = slot;
       }
+      if (!target) return;
+      const range = this.queue.shift()!;
+      target.posted.push(range);
+      target.worker.postMessage({ type: 'chunk', range });
     }
   }
 

@@ -5,7 +5,8 @@
  * Equation (Gondolo & Gelmini 1991, Nucl. Phys. B360, 145; shared notes relic.md eqs. 1.3-1.4):
  *   dY/dx = -L(x) (Y^2 - Y_eq^2),   L(x) = lambda(x) <sigma v>(x) / x^2,
  *   lambda(x) = sqrt(pi/45) M_Pl m g_*^{1/2}(m/x),
- *   Y_eq(x) = (45 g / (4 pi^4)) x^2 K_2(x) / h_eff(m/x)   (Maxwell-Boltzmann, eq. 1.7),
+ *   Y_eq(x) = (45 g / (4 pi^4)) x^2 K_2(x) / h_eff(m/x)   (Maxwell-Boltzmann, eq. 1.7;
+ *   K_2 from the 15-term large-argument form of physics/numerics/bessel.ts for x >= 6, ~1e-14),
  * with M_Pl the non-reduced Planck mass (physics/constants.ts PLANCK_MASS_GEV, the only convention)
  * and h_eff, g_*^{1/2} from physics/dof.ts (its interpolated fast path, < 1e-7 from the fit; the
  * d ln h/d ln T term inside g_*^{1/2} is kept: dropping it
@@ -37,7 +38,7 @@
  */
 import { PLANCK_MASS_GEV } from '../constants.js';
 import { DOF_FIT_JUNCTION_GEV, dofInto, fastDofInto, gStarHalfIntegral } from '../dof.js';
-import { besselK1Scaled, besselK2Scaled } from '../numerics/bessel.js';
+import { besselK1Scaled, besselK2ScaledLarge } from '../numerics/bessel.js';
 import { gaussLegendre } from '../numerics/quadrature.js';
 
 /** Numerical knobs of the freeze-out solver (declared with docs in physics/relic/relic.ts). */
@@ -106,7 +107,7 @@ export function lambdaOf(mChiGeV: number, x: number): number {
 /** Equilibrium yield Y_eq(x) = (45 g/(4 pi^4)) x^2 K_2(x) / h_eff(m/x), Maxwell-Boltzmann. */
 export function equilibriumYield(mChiGeV: number, gChi: number, x: number): number {
   fastDofInto(mChiGeV / x, dofScratch);
-  return (YEQ_PREFACTOR * gChi * x * x * besselK2Scaled(x) * Math.exp(-x)) / dofScratch[0]!;
+  return (YEQ_PREFACTOR * gChi * x * x * besselK2ScaledLarge(x) * Math.exp(-x)) / dofScratch[0]!;
 }
 
 /** Gauss-Legendre nodes per tail panel */
@@ -220,13 +221,13 @@ const point = new Float64Array(2);
 function evaluateAt(m: number, g: number, sigmaV: (x: number) => number, x: number): void {
   fastDofInto(m / x, dofScratch);
   point[0] = (LAMBDA_PREFACTOR * m * dofScratch[1]! * sigmaV(x)) / (x * x);
-  point[1] = (YEQ_PREFACTOR * g * x * x * besselK2Scaled(x) * Math.exp(-x)) / dofScratch[0]!;
+  point[1] = (YEQ_PREFACTOR * g * x * x * besselK2ScaledLarge(x) * Math.exp(-x)) / dofScratch[0]!;
 }
 
 /** ln q(x), q = -Y_eq'/(L Y_eq^2), of the quasi-static start; leaves L and Y_eq at x in `point` */
 function lnQAt(m: number, g: number, sigmaV: (x: number) => number, x: number): number {
   dofInto(m / x, dofScratch);
-  const minusDlnYeq = besselK1Scaled(x) / besselK2Scaled(x) - dofScratch[2]! / x;
+  const minusDlnYeq = besselK1Scaled(x) / besselK2ScaledLarge(x) - dofScratch[2]! / x;
   evaluateAt(m, g, sigmaV, x);
   return Math.log(minusDlnYeq / (point[0]! * point[1]!));
 }

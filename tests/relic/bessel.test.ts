@@ -4,7 +4,7 @@
  * scipy.special.kve (cross-check of the fixture itself).
  */
 import { describe, expect, it } from 'vitest';
-import { ASYMPTOTIC_Z_MIN, besselK0Scaled, besselK1Scaled, besselK2Scaled, LARGE_Z_MIN, sqrtZK1ScaledAsymptotic, sqrtZK1ScaledOfInverse } from '../../physics/numerics/bessel.js';
+import { ASYMPTOTIC_Z_MIN, besselK0Scaled, besselK1Scaled, besselK2Scaled, besselK2ScaledLarge, LARGE_Z_MIN, sqrtZK1ScaledAsymptotic, sqrtZK1ScaledOfInverse } from '../../physics/numerics/bessel.js';
 import fixture from '../fixtures/relic/bessel_kve.json' with { type: 'json' };
 
 interface Row { z: number; k0: number; k1: number; k2: number; scipy_k0: number; scipy_k1: number; scipy_k2: number }
@@ -79,6 +79,22 @@ describe('scaled Bessel K (mpmath besselk x e^z, 40 digits; scipy kve cross-chec
     }
     expect(bad, bad.join('\n')).toEqual([]);
     expect(rows.filter((r) => r.z >= LARGE_Z_MIN).length).toBeGreaterThan(50);
+  });
+
+  it(`large-argument form of K~_2(z) (z >= ${LARGE_Z_MIN}) vs mpmath besselk (fixture rows); below it the general form`, () => {
+    // 15 Chebyshev terms of sqrt(z) K~_2(z) on u in [0, 1/6]; the coefficients come from
+    // besselK2Scaled (2e-14 above), so the same 2e-14 tolerance applies
+    const bad: string[] = [];
+    for (const r of rows) {
+      const got = besselK2ScaledLarge(r.z);
+      const err = relErr(got, r.k2);
+      if (!(err <= 2e-14)) bad.push(`z=${r.z} got=${got} expected=${r.k2} rel.diff=${err.toExponential(2)} tol=2e-14`);
+      if (r.z < LARGE_Z_MIN && got !== besselK2Scaled(r.z)) bad.push(`z=${r.z}: below ${LARGE_Z_MIN} not the general form`);
+    }
+    expect(bad, bad.join('\n')).toEqual([]);
+    expect(rows.filter((r) => r.z >= LARGE_Z_MIN).length).toBeGreaterThan(50);
+    expect(besselK2ScaledLarge(Infinity)).toBe(0);
+    expect(besselK2ScaledLarge(NaN)).toBeNaN();
   });
 
   it(`truncated Hankel series of sqrt(z) K~_1(z) through u^6 (z >= ${ASYMPTOTIC_Z_MIN}) vs mpmath besselk (A&S 9.7.2)`, () => {

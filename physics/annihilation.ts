@@ -126,15 +126,17 @@ function pairConstants(mediator: ModelPoint['mediator'], gChi: number, mChiGeV: 
   }
 }
 
+/** Adds an out_of_range issue when `value` is not a finite number > 0. */
+function checkPositive(issues: Issue[], name: string, value: number): void {
+  if (!(Number.isFinite(value) && value > 0)) {
+    issues.push({ code: 'out_of_range', path: name, message: `${name} must be a finite number > 0`, seen: String(value), allowed: '> 0' });
+  }
+}
+
 function checkInputs(point: ModelPoint, widthMedGeV: number): void {
   const issues: Issue[] = [];
-  const positive = (name: string, value: number): void => {
-    if (!(Number.isFinite(value) && value > 0)) {
-      issues.push({ code: 'out_of_range', path: name, message: `${name} must be a finite number > 0`, seen: String(value), allowed: '> 0' });
-    }
-  };
-  positive('m_chi', point.m_chi);
-  positive('m_med', point.m_med);
+  checkPositive(issues, 'm_chi', point.m_chi);
+  checkPositive(issues, 'm_med', point.m_med);
   if (!(Number.isFinite(widthMedGeV) && widthMedGeV >= 0)) {
     issues.push({
       code: 'out_of_range', path: 'width_med', message: 'width_med (mediator total width, GeV) must be a finite number >= 0',
@@ -149,6 +151,13 @@ function checkInputs(point: ModelPoint, widthMedGeV: number): void {
   if (issues.length > 0) throw new InvalidInputError(issues);
 }
 
+/** Mediator kinds as small integers for the switch of the hot path. */
+const SCALAR = 0;
+const PSEUDOSCALAR = 1;
+const VECTOR = 2;
+const AXIAL = 3;
+const MEDIATOR_CODE = { scalar: SCALAR, pseudoscalar: PSEUDOSCALAR, vector: VECTOR, axial: AXIAL } as const;
+
 /**
  * Builds the annihilation of one model point with the mediator total width `widthMedGeV` (the
  * minimal width of physics/widths.ts or a user-given width). Throws InvalidInputError for
@@ -156,67 +165,221 @@ function checkInputs(point: ModelPoint, widthMedGeV: number): void {
  */
 export function buildAnnihilation(point: ModelPoint, widthMedGeV: number, options: AnnihilationOptions = {}): Annihilation {
   checkInputs(point, widthMedGeV);
-  const fermions = options.fermions ?? DEFAULT_FERMIONS;
-  const vevGeV = options.vevGeV ?? BASE.higgsVev.value;
-  const mediator = point.mediator;
-  const spin0 = mediator === 'scalar' || mediator === 'pseudoscalar';
-  const mChi = point.m_chi;
-  const M = point.m_med;
-  const mx2 = mChi * mChi;
-  const fourMx2 = 4 * mx2;
-  const M2 = M * M;
-  const MGamma2 = M2 * widthMedGeV * widthMedGeV;
-  const invM2 = 1 / M2;
-  // Majorana vector current vanishes identically (indirect.md A6): no coupling to dark matter
-  const gChi = point.dm === 'majorana' && mediator === 'vector' ? 0 : point.g_chi;
+  return new SimplifiedModelAnnihilation(point, widthMedGeV, options);
+}
 
-  const channels: AnnihilationChannel[] = [];
-  const coeff: number[] = [];
-  const fourMf2: number[] = [];
-  const twoMf2: number[] = [];
-  const axialMass: number[] = [];
-  if (gChi !== 0) {
-    for (const f of fermions) {
-      const gBare = f.kind === 'quark' ? point.g_q : point.g_l;
-      if (gBare === 0) continue;
-      const gF = spin0 ? (gBare * f.massGeV) / vevGeV : gBare;
-      const norm = spin0 ? 8 * Math.PI : 6 * Math.PI;
-      channels.push(Object.freeze({ name: f.name, thresholdGeV: 2 * f.massGeV }));
-      coeff.push((f.colours * gChi * gChi * gF * gF) / norm);
-      fourMf2.push(4 * f.massGeV * f.massGeV);
-      twoMf2.push(2 * f.massGeV * f.massGeV);
-      axialMass.push(12 * mx2 * f.massGeV * f.massGeV);
+/**
+ * The Annihilation of one point: every s-independent constant precomputed into fields and
+ * Float64Arrays. A class, not closures: one frozen object per point and no function objects (under
+ * tsx each named closure costs a __name call at creation). The evaluation arithmetic is unchanged
+ * from the closure form (bit-identical results).
+ */
+class SimplifiedModelAnnihilation implements Annihilation {
+  readonly mChiGeV: number;
+  readonly channels: readonly AnnihilationChannel[];
+  readonly poles: readonly Pole[];
+  readonly subthresholdPoles: readonly Pole[];
+  readonly thresholdsGeV: readonly number[];
+  private readonly kind: number;
+  private readonly mx2: number;
+  private readonly fourMx2: number;
+  private readonly M2: number;
+  private readonly MGamma2: number;
+  private readonly invM2: number;
+  private readonly invMx2: number;
+  private readonly nF: number;
+  private readonly nAll: number;
+  private readonly C: Float64Array;
+  private readonly F4: Float64Array;
+  private readonly F2: Float64Array;
+  private readonly AX: Float64Array;
+  private readonly hasPair: boolean;
+  // mediator-pair constants (zero without the pair channel)
+  private readonly pr: number;
+  private readonly pNorm: number;
+  private readonly n00: number;
+  private readonly n01: number;
+  private readonly n02: number;
+  private readonly n03: number;
+  private readonly pc1: number;
+  private readonly c20: number;
+  private readonly c21: number;
+  private readonly c22: number;
+  /** (1 - x^2) w^2 / 4 = r^2 - 4 r + sh, without sh */
+  private readonly pRR: number;
+  /** per-channel output of sigmaTotalGeV2 */
+  private readonly scratch: Float64Array;
+
+  constructor(point: ModelPoint, widthMedGeV: number, options: AnnihilationOptions) {
+    const fermions = options.fermions ?? DEFAULT_FERMIONS;
+    const vevGeV = options.vevGeV ?? BASE.higgsVev.value;
+    const mediator = point.mediator;
+    const spin0 = mediator === 'scalar' || mediator === 'pseudoscalar';
+    const mChi = point.m_chi;
+    const M = point.m_med;
+    const mx2 = mChi * mChi;
+    const M2 = M * M;
+    // Majorana vector current vanishes identically (indirect.md A6): no coupling to dark matter
+    const gChi = point.dm === 'majorana' && mediator === 'vector' ? 0 : point.g_chi;
+
+    const channels: AnnihilationChannel[] = [];
+    const coeff: number[] = [];
+    const fourMf2: number[] = [];
+    const twoMf2: number[] = [];
+    const axialMass: number[] = [];
+    if (gChi !== 0) {
+      for (const f of fermions) {
+        const gBare = f.kind === 'quark' ? point.g_q : point.g_l;
+        if (gBare === 0) continue;
+        const gF = spin0 ? (gBare * f.massGeV) / vevGeV : gBare;
+        const norm = spin0 ? 8 * Math.PI : 6 * Math.PI;
+        channels.push(Object.freeze({ name: f.name, thresholdGeV: 2 * f.massGeV }));
+        coeff.push((f.colours * gChi * gChi * gF * gF) / norm);
+        fourMf2.push(4 * f.massGeV * f.massGeV);
+        twoMf2.push(2 * f.massGeV * f.massGeV);
+        axialMass.push(12 * mx2 * f.massGeV * f.massGeV);
+      }
+    }
+    const nF = channels.length;
+    const pair = gChi !== 0 && (options.mediatorPairs ?? true) && mChi > M
+      ? pairConstants(mediator, gChi, mChi, M)
+      : null;
+    if (pair) channels.push(Object.freeze({ name: MEDIATOR_PAIR_CHANNEL, thresholdGeV: 2 * M }));
+
+    this.mChiGeV = mChi;
+    this.kind = MEDIATOR_CODE[mediator];
+    this.mx2 = mx2;
+    this.fourMx2 = 4 * mx2;
+    this.M2 = M2;
+    this.MGamma2 = M2 * widthMedGeV * widthMedGeV;
+    this.invM2 = 1 / M2;
+    this.invMx2 = 1 / mx2;
+    this.nF = nF;
+    this.nAll = channels.length;
+    this.C = Float64Array.from(coeff);
+    this.F4 = Float64Array.from(fourMf2);
+    this.F2 = Float64Array.from(twoMf2);
+    this.AX = Float64Array.from(axialMass);
+    this.hasPair = pair !== null;
+    this.pr = pair ? pair.r : 0;
+    this.pNorm = pair ? pair.norm : 0;
+    this.n00 = pair ? pair.n0[0] : 0;
+    this.n01 = pair ? pair.n0[1] : 0;
+    this.n02 = pair ? pair.n0[2] : 0;
+    this.n03 = pair ? pair.n0[3] : 0;
+    this.pc1 = pair ? pair.c1 : 0;
+    this.c20 = pair ? pair.c2[0] : 0;
+    this.c21 = pair ? pair.c2[1] : 0;
+    this.c22 = pair ? pair.c2[2] : 0;
+    this.pRR = this.pr * this.pr - 4 * this.pr;
+    this.scratch = new Float64Array(this.nAll);
+
+    this.channels = Object.freeze(channels);
+    this.poles = Object.freeze(M > 2 * mChi ? [Object.freeze({ massGeV: M, widthGeV: widthMedGeV })] : []);
+    // the same propagator's pole when the mediator lies at or below 2 m_chi (the thermal average
+    // refines towards threshold when it is close)
+    this.subthresholdPoles = Object.freeze(M > 2 * mChi ? [] : [Object.freeze({ massGeV: M, widthGeV: widthMedGeV })]);
+    this.thresholdsGeV = Object.freeze([...new Set(channels.map((c) => c.thresholdGeV).filter((t) => t > 2 * mChi))].sort((a, b) => a - b));
+    Object.freeze(this);
+  }
+
+  // below threshold every channel is zero; a NaN s propagates as NaN (never silently zero)
+  sigmaVByChannelGeV2(sGeV2: number, out: Float64Array): number {
+    if (sGeV2 < this.fourMx2) {
+      for (let i = 0; i < this.nAll; i++) out[i] = 0;
+      return 0;
+    }
+    let sum = this.fermionSum(sGeV2, out);
+    if (this.hasPair) {
+      const v = this.pairSigmaV(sGeV2);
+      out[this.nF] = v;
+      sum += v;
+    }
+    return sum;
+  }
+
+  sigmaTotalGeV2(sGeV2: number): number {
+    // sigma = sigma v_Mol / (2 beta_chi); at s = 4 m^2 the phase-space factor (s - 4m^2) of every
+    // consumer vanishes, so 0 is returned there instead of the s-wave 1/beta divergence
+    if (sGeV2 <= this.fourMx2) return 0;
+    const betaChi = Math.sqrt((sGeV2 - this.fourMx2) / sGeV2);
+    return this.sigmaVByChannelGeV2(sGeV2, this.scratch) / (2 * betaChi);
+  }
+
+  /** f fbar channels into out[0 .. nF-1] (s >= 4 m_chi^2), returns their sum */
+  private fermionSum(s: number, out: Float64Array): number {
+    const nF = this.nF;
+    const C = this.C;
+    const F4 = this.F4;
+    const M2 = this.M2;
+    const MGamma2 = this.MGamma2;
+    let sum = 0;
+    switch (this.kind) {
+      case SCALAR: {
+        const k = (s - this.fourMx2) / ((s - M2) * (s - M2) + MGamma2);
+        for (let i = 0; i < nF; i++) {
+          const x = s - (F4[i] as number);
+          let v = 0;
+          if (x > 0) {
+            const bf = Math.sqrt(x / s);
+            v = (C[i] as number) * k * bf * bf * bf;
+          }
+          out[i] = v;
+          sum += v;
+        }
+        return sum;
+      }
+      case PSEUDOSCALAR: {
+        const k = s / ((s - M2) * (s - M2) + MGamma2);
+        for (let i = 0; i < nF; i++) {
+          const x = s - (F4[i] as number);
+          const v = x > 0 ? (C[i] as number) * k * Math.sqrt(x / s) : 0;
+          out[i] = v;
+          sum += v;
+        }
+        return sum;
+      }
+      case VECTOR: {
+        const F2 = this.F2;
+        const k = (s + 2 * this.mx2) / (s * ((s - M2) * (s - M2) + MGamma2));
+        for (let i = 0; i < nF; i++) {
+          const x = s - (F4[i] as number);
+          const v = x > 0 ? (C[i] as number) * k * Math.sqrt(x / s) * (s + (F2[i] as number)) : 0;
+          out[i] = v;
+          sum += v;
+        }
+        return sum;
+      }
+      default: {
+        // AXIAL
+        const AX = this.AX;
+        const k = 1 / (s * ((s - M2) * (s - M2) + MGamma2));
+        const t = s - this.fourMx2;
+        const w = 1 - s * this.invM2;
+        const w2 = w * w;
+        for (let i = 0; i < nF; i++) {
+          const x = s - (F4[i] as number);
+          const v = x > 0 ? (C[i] as number) * k * Math.sqrt(x / s) * (t * x + (AX[i] as number) * w2) : 0;
+          out[i] = v;
+          sum += v;
+        }
+        return sum;
+      }
     }
   }
-  const nF = channels.length;
-  const pair = gChi !== 0 && (options.mediatorPairs ?? true) && mChi > M
-    ? pairConstants(mediator, gChi, mChi, M)
-    : null;
-  if (pair) channels.push(Object.freeze({ name: MEDIATOR_PAIR_CHANNEL, thresholdGeV: 2 * M }));
-  const nAll = channels.length;
 
-  const C = Float64Array.from(coeff);
-  const F4 = Float64Array.from(fourMf2);
-  const F2 = Float64Array.from(twoMf2);
-  const AX = Float64Array.from(axialMass);
-  // mediator-pair constants unpacked into locals for the hot path
-  const invMx2 = 1 / mx2;
-  const pr = pair ? pair.r : 0;
-  const pNorm = pair ? pair.norm : 0;
-  const [n00, n01, n02, n03] = pair ? pair.n0 : [0, 0, 0, 0];
-  const pc1 = pair ? pair.c1 : 0;
-  const [c20, c21, c22] = pair ? pair.c2 : [0, 0, 0];
-  const pRR = pr * pr - 4 * pr; // (1 - x^2) w^2 / 4 = r^2 - 4 r + sh
   /** exact chi chibar -> med med, sigma v_Mol in GeV^-2 (s >= 4 m_chi^2 > 4 m_med^2) */
-  const pairSigmaV = (s: number): number => {
-    const d = (s - fourMx2) * invMx2; // s/m^2 - 4 = beta_chi^2 s/m^2
+  private pairSigmaV(s: number): number {
+    const pr = this.pr;
+    const invMx2 = this.invMx2;
+    const d = (s - this.fourMx2) * invMx2; // s/m^2 - 4 = beta_chi^2 s/m^2
     const sh = s * invMx2;
     const ish = 1 / sh;
     const e = sh - 4 * pr; // beta_med^2 s/m^2
     const w = sh - 2 * pr;
     const w2 = w * w;
     const iw2 = 1 / w2;
-    const iq = 1 / (pRR + sh); // 4 / ((1 - x^2) w^2)
+    const iq = 1 / (this.pRR + sh); // 4 / ((1 - x^2) w^2)
     const de = d * e;
     const x2 = de * iw2; // x = beta_chi beta_med s / (s - 2 M^2)
     const xr = 0.25 * de * iq; // x^2 / (1 - x^2) without the cancellation of 1 - x^2
@@ -230,112 +393,8 @@ export function buildAnnihilation(point: ModelPoint, widthMedGeV: number, option
       const atanh = 0.5 * Math.log((1 + x) * (1 + x) * w2 * 0.25 * iq);
       h = (atanh - x) / (x * x2);
     }
-    const n0 = n00 + d * (n01 + d * (n02 + d * n03));
-    const c2 = c20 + d * (c21 + d * c22);
-    return pNorm * Math.sqrt(e * ish) * (xr * pc1 + x2 * c2 * h + 2 * n0) * ish * iw2;
-  };
-
-  // One specialised loop per mediator keeps the switch out of the hot path.
-  let fermionSum: (s: number, out: Float64Array) => number;
-  switch (mediator) {
-    case 'scalar':
-      fermionSum = (s, out) => {
-        const k = (s - fourMx2) / ((s - M2) * (s - M2) + MGamma2);
-        let sum = 0;
-        for (let i = 0; i < nF; i++) {
-          const x = s - (F4[i] as number);
-          let v = 0;
-          if (x > 0) {
-            const bf = Math.sqrt(x / s);
-            v = (C[i] as number) * k * bf * bf * bf;
-          }
-          out[i] = v;
-          sum += v;
-        }
-        return sum;
-      };
-      break;
-    case 'pseudoscalar':
-      fermionSum = (s, out) => {
-        const k = s / ((s - M2) * (s - M2) + MGamma2);
-        let sum = 0;
-        for (let i = 0; i < nF; i++) {
-          const x = s - (F4[i] as number);
-          const v = x > 0 ? (C[i] as number) * k * Math.sqrt(x / s) : 0;
-          out[i] = v;
-          sum += v;
-        }
-        return sum;
-      };
-      break;
-    case 'vector':
-      fermionSum = (s, out) => {
-        const k = (s + 2 * mx2) / (s * ((s - M2) * (s - M2) + MGamma2));
-        let sum = 0;
-        for (let i = 0; i < nF; i++) {
-          const x = s - (F4[i] as number);
-          const v = x > 0 ? (C[i] as number) * k * Math.sqrt(x / s) * (s + (F2[i] as number)) : 0;
-          out[i] = v;
-          sum += v;
-        }
-        return sum;
-      };
-      break;
-    case 'axial':
-      fermionSum = (s, out) => {
-        const k = 1 / (s * ((s - M2) * (s - M2) + MGamma2));
-        const t = s - fourMx2;
-        const w = 1 - s * invM2;
-        const w2 = w * w;
-        let sum = 0;
-        for (let i = 0; i < nF; i++) {
-          const x = s - (F4[i] as number);
-          const v = x > 0 ? (C[i] as number) * k * Math.sqrt(x / s) * (t * x + (AX[i] as number) * w2) : 0;
-          out[i] = v;
-          sum += v;
-        }
-        return sum;
-      };
-      break;
+    const n0 = this.n00 + d * (this.n01 + d * (this.n02 + d * this.n03));
+    const c2 = this.c20 + d * (this.c21 + d * this.c22);
+    return this.pNorm * Math.sqrt(e * ish) * (xr * this.pc1 + x2 * c2 * h + 2 * n0) * ish * iw2;
   }
-
-  // below threshold every channel is zero; a NaN s propagates as NaN (never silently zero)
-  const sigmaVByChannelGeV2 = (sGeV2: number, out: Float64Array): number => {
-    if (sGeV2 < fourMx2) {
-      for (let i = 0; i < nAll; i++) out[i] = 0;
-      return 0;
-    }
-    let sum = fermionSum(sGeV2, out);
-    if (pair) {
-      const v = pairSigmaV(sGeV2);
-      out[nF] = v;
-      sum += v;
-    }
-    return sum;
-  };
-
-  const scratch = new Float64Array(nAll);
-  const sigmaTotalGeV2 = (sGeV2: number): number => {
-    // sigma = sigma v_Mol / (2 beta_chi); at s = 4 m^2 the phase-space factor (s - 4m^2) of every
-    // consumer vanishes, so 0 is returned there instead of the s-wave 1/beta divergence
-    if (sGeV2 <= fourMx2) return 0;
-    const betaChi = Math.sqrt((sGeV2 - fourMx2) / sGeV2);
-    return sigmaVByChannelGeV2(sGeV2, scratch) / (2 * betaChi);
-  };
-
-  const poles: Pole[] = M > 2 * mChi ? [Object.freeze({ massGeV: M, widthGeV: widthMedGeV })] : [];
-  // the same propagator's pole when the mediator lies at or below 2 m_chi (the thermal average
-  // refines towards threshold when it is close)
-  const subthresholdPoles: Pole[] = M > 2 * mChi ? [] : [Object.freeze({ massGeV: M, widthGeV: widthMedGeV })];
-  const thresholdsGeV = [...new Set(channels.map((c) => c.thresholdGeV).filter((t) => t > 2 * mChi))].sort((a, b) => a - b);
-
-  return Object.freeze({
-    mChiGeV: mChi,
-    channels: Object.freeze(channels),
-    sigmaTotalGeV2,
-    sigmaVByChannelGeV2,
-    poles: Object.freeze(poles),
-    subthresholdPoles: Object.freeze(subthresholdPoles),
-    thresholdsGeV: Object.freeze(thresholdsGeV),
-  });
 }

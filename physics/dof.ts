@@ -270,6 +270,34 @@ export function fastDofInto(tGeV: number, out: Float64Array): void {
   out[1] = h00 * d[k + 2]! + h10 * du * d[k + 3]! + h01 * d[k + 6]! + h11 * du * d[k + 7]!;
 }
 
+/**
+ * Interpolated g_*^{1/2} alone at T in GeV: the out[1] of fastDofInto, same arithmetic (bit-identical),
+ * without the exponential that h_eff needs (the Boltzmann tail integral reads only g_*^{1/2}).
+ */
+export function fastGStarHalf(tGeV: number): number {
+  if (!(tGeV >= FAST_T_MIN && tGeV <= FAST_T_MAX)) {
+    dofInto(tGeV, scratch);
+    return (scratch[1]! / Math.sqrt(scratch[0]!)) * (1 + scratch[2]! / 3);
+  }
+  const u = Math.log(tGeV);
+  const seg = tGeV >= DOF_FIT_JUNCTION_GEV ? FAST_HIGH : FAST_LOW;
+  let pos = (u - seg.u0) / seg.du;
+  if (pos < 0) pos = 0;
+  let i = Math.floor(pos);
+  if (i >= seg.n - 1) i = seg.n - 2;
+  const s = pos - i;
+  const s2 = s * s;
+  const s3 = s2 * s;
+  const h00 = 2 * s3 - 3 * s2 + 1;
+  const h10 = s3 - 2 * s2 + s;
+  const h01 = -2 * s3 + 3 * s2;
+  const h11 = s3 - s2;
+  const d = seg.data;
+  const k = 4 * i;
+  const du = seg.du;
+  return h00 * d[k + 2]! + h10 * du * d[k + 3]! + h01 * d[k + 6]! + h11 * du * d[k + 7]!;
+}
+
 // ---------------------------------------------------------------- integral of g_*^{1/2} over T
 // The Boltzmann tail needs int lambda <sigma v> dx / x^2 beyond the end of the <sigma v> table,
 // where <sigma v> is constant; with T = m/x that is sqrt(pi/45) M_Pl <sigma v> int_0^T g_*^{1/2} dT'.

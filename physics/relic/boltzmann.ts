@@ -37,7 +37,7 @@
  * ~7e-4 at most in Omega h^2 against tight knobs over the mixed bench (tests/bench/relic-bench.ts).
  */
 import { PLANCK_MASS_GEV } from '../constants.js';
-import { DOF_FIT_JUNCTION_GEV, dofInto, fastDofInto, gStarHalfIntegral } from '../dof.js';
+import { DOF_FIT_JUNCTION_GEV, dofInto, fastDofInto, fastGStarHalf, gStarHalfIntegral } from '../dof.js';
 import { besselK1Scaled, besselK2ScaledLarge } from '../numerics/bessel.js';
 import { gaussLegendre } from '../numerics/quadrature.js';
 
@@ -100,8 +100,7 @@ const dofScratch = new Float64Array(3);
 
 /** lambda(x) = sqrt(pi/45) M_Pl m g_*^{1/2}(m/x) */
 export function lambdaOf(mChiGeV: number, x: number): number {
-  fastDofInto(mChiGeV / x, dofScratch);
-  return LAMBDA_PREFACTOR * mChiGeV * dofScratch[1]!;
+  return LAMBDA_PREFACTOR * mChiGeV * fastGStarHalf(mChiGeV / x);
 }
 
 /** Equilibrium yield Y_eq(x) = (45 g/(4 pi^4)) x^2 K_2(x) / h_eff(m/x), Maxwell-Boltzmann. */
@@ -259,8 +258,7 @@ function tailIntegral(m: number, sigmaV: (x: number) => number, uA: number, uB: 
     const mid = uA + hu * (j + 0.5);
     for (let i = 0; i < TAIL_NODES; i++) {
       const x = Math.exp(mid + 0.5 * hu * rule.nodes[i]!);
-      fastDofInto(m / x, dofScratch);
-      sum += rule.weights[i]! * dofScratch[1]! * sigmaV(x) / x;
+      sum += rule.weights[i]! * fastGStarHalf(m / x) * sigmaV(x) / x;
     }
   }
   return 0.5 * hu * LAMBDA_PREFACTOR * m * sum;

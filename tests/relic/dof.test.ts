@@ -6,7 +6,7 @@
  * free-particle limits (Kolb & Turner 1990, The Early Universe, ch. 3, from memory).
  */
 import { describe, expect, it } from 'vitest';
-import { DOF_FIT_JUNCTION_GEV, dLnHdLnT, dof, gEff, gStarHalf, gStarHalfIntegral, hEff } from '../../physics/dof.js';
+import { DOF_FIT_JUNCTION_GEV, dLnHdLnT, dof, fastDofInto, fastGStarHalf, gEff, gStarHalf, gStarHalfIntegral, hEff } from '../../physics/dof.js';
 import fixture from '../fixtures/relic/dof_fit.json' with { type: 'json' };
 import gstarIntegral from '../fixtures/relic/gstar_integral.json' with { type: 'json' };
 
@@ -25,6 +25,21 @@ describe('Saikawa-Shirai 2018 fit vs independent mpmath evaluation of the same f
       if (!(rel(gStarHalf(r.T), r.gStarHalf) < 1e-10)) bad.push(`g*^1/2 T=${r.T} got ${gStarHalf(r.T)} exp ${r.gStarHalf}`);
     }
     expect(bad, bad.join('\n')).toEqual([]);
+  });
+
+  it('interpolated fast path: h_eff and g*^1/2 within 1e-7 of the mpmath fit values; fastGStarHalf is fastDofInto out[1] exactly', () => {
+    // 1e-7: the cubic Hermite interpolation bound stated in physics/dof.ts (fit rows span both
+    // branches and the exact-fit fallback outside [1e-5, 1e6] GeV)
+    const bad: string[] = [];
+    const out = new Float64Array(2);
+    for (const r of fx.rows) {
+      fastDofInto(r.T, out);
+      if (!(rel(out[0]!, r.h) < 1e-7)) bad.push(`fast h T=${r.T} got ${out[0]} exp ${r.h} tol 1e-7`);
+      if (!(rel(out[1]!, r.gStarHalf) < 1e-7)) bad.push(`fast g*^1/2 T=${r.T} got ${out[1]} exp ${r.gStarHalf} tol 1e-7`);
+      if (fastGStarHalf(r.T) !== out[1]) bad.push(`fastGStarHalf T=${r.T} got ${fastGStarHalf(r.T)} exp ${out[1]} (bit-identical)`);
+    }
+    expect(bad, bad.join('\n')).toEqual([]);
+    expect(fx.rows.length).toBeGreaterThan(20);
   });
 
   it('single-quantity exports agree with dof()', () => {

@@ -449,9 +449,11 @@ class SplineTable implements SigmaVTable {
   private readonly ys: readonly number[];
   private readonly lnValue: TableAverager;
   private readonly u0: number;
-  private readonly u: Float64Array;
-  private readonly y: Float64Array;
-  private readonly m2: Float64Array;
+  // plain arrays of doubles, not Float64Arrays: a typed array above 64 bytes costs ~1 us to allocate
+  // (off-heap backing store), several per point; element reads are as fast
+  private readonly u: readonly number[];
+  private readonly y: readonly number[];
+  private readonly m2: readonly number[];
   private readonly endValue: number;
 
   constructor(ann: Annihilation, knobs: ThermalAverageKnobs, xMin: number, xMax: number, us: readonly number[], ys: readonly number[], lnValue: TableAverager) {
@@ -465,9 +467,10 @@ class SplineTable implements SigmaVTable {
     this.nodes = us.length;
     this.u0 = Math.log(xMin);
     this.allZero = ys.every((y) => y === Math.log(LOG_FLOOR));
-    this.u = Float64Array.from(us);
-    this.y = Float64Array.from(ys);
-    this.m2 = notAKnotSecondDerivatives(this.u, this.y);
+    // the table owns us and ys (tabulateThermalAverage and refined() pass fresh arrays)
+    this.u = us;
+    this.y = ys;
+    this.m2 = notAKnotSecondDerivatives(us, ys);
     this.endValue = Math.exp(this.y[this.nodes - 1]!);
   }
 
@@ -535,20 +538,39 @@ function localCubic(us: readonly number[], ys: readonly number[], i: number, u: 
 }
 
 /**
+ * Work arrays of notAKnotSecondDerivatives (h, diagonal, upper, lower, right side), grown on
+ * demand; each call writes every entry it reads (indices below n - 1 and n - 2) before reading it.
+ * The solve is synchronous and calls nothing else, so sharing them is safe, and it saves five
+ * typed-array allocations per spline.
+ */
+let workH = new Float64Array(64);
+let workDiag = new Float64Array(64);
+let workUpper = new Float64Array(64);
+let workLower = new Float64Array(64);
+let workR = new Float64Array(64);
+
+/**
  * Second derivatives of the cubic spline through (u, y) (any increasing u), with not-a-knot ends
  * (third derivative continuous at the second and the second-to-last node).
  */
-function notAKnotSecondDerivatives(u: Float64Array, y: Float64Array): Float64Array {
+function notAKnotSecondDerivatives(u: readonly number[], y: readonly number[]): number[] {
   const n = y.length;
-  const m = new Float64Array(n);
-  const h = new Float64Array(n - 1);
+  const m: number[] = new Array<number>(n).fill(0);
+  if (workH.length < n) {
+    workH = new Float64Array(2 * n);
+    workDiag = new Float64Array(2 * n);
+    workUpper = new Float64Array(2 * n);
+    workLower = new Float64Array(2 * n);
+    workR = new Float64Array(2 * n);
+  }
+  const h = workH;
   for (let i = 0; i + 1 < n; i++) h[i] = u[i + 1]! - u[i]!;
   // unknowns M1..M_{n-2}; M0 and M_{n-1} eliminated with the not-a-knot conditions
   const k = n - 2;
-  const diag = new Float64Array(k);
-  const upper = new Float64Array(k);
-  const lower = new Float64Array(k);
-  const r = new Float64Array(k);
+  const diag = workDiag;
+  const upper = workUpper;
+  const lower = workLower;
+  const r = workR;
   for (let j = 0; j < k; j++) {
     const i = j + 1;
     lower[j] = h[i - 1]!;

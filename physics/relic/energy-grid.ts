@@ -45,19 +45,23 @@ const FIRST_PIECE_T = 0.5;
 /** ratio of successive piece lengths away from a singular point */
 const GRADING = 2;
 
-/** sigma(s) sampled once per model point on a graded rule in delta = sqrt(s) - 2m. */
+/**
+ * sigma(s) sampled once per model point on a graded rule in delta = sqrt(s) - 2m. Plain arrays of
+ * numbers, not typed arrays: a typed array above 64 bytes costs ~1 us to allocate (off-heap backing
+ * store) and a grid had six; element reads are as fast.
+ */
 export interface EnergyGrid {
   readonly mChiGeV: number;
   /** node positions delta_i (GeV), ascending */
-  readonly delta: Float64Array;
+  readonly delta: readonly number[];
   /** w_i sigma(E_i^2) (E_i^2 - 4m^2) E_i^2 / sqrt(E_i) (GeV^4 x GeV^-2 x GeV x GeV^-1/2) */
-  readonly weight: Float64Array;
+  readonly weight: readonly number[];
   /** 1/E_i (GeV^-1) */
-  readonly inverseE: Float64Array;
+  readonly inverseE: readonly number[];
   /** left end of each piece (GeV), ascending */
-  readonly pieceLeft: Float64Array;
+  readonly pieceLeft: readonly number[];
   /** index of the first node of each piece; pieceStart[pieces] = number of nodes */
-  readonly pieceStart: Int32Array;
+  readonly pieceStart: readonly number[];
 }
 
 /** Real part delta_p and imaginary part gamma of the pole singularity in delta (GeV). */
@@ -106,7 +110,7 @@ export function buildEnergyGrid(ann: Annihilation, xLow: number, xHigh: number, 
     if (dp > 0 && dp < deltaMax) cuts.push(dp);
     graded(cuts, deltaMax, dp, pole[1]!, true);
   }
-  const sorted = Float64Array.from(cuts).sort();
+  const sorted = cuts.sort(ascending);
   const left: number[] = [];
   const right: number[] = [];
   for (let i = 0; i + 1 < sorted.length; i++) {
@@ -117,15 +121,14 @@ export function buildEnergyGrid(ann: Annihilation, xLow: number, xHigh: number, 
   }
   const rule = gaussLegendre(nodesPerPiece);
   const pieces = left.length;
-  const n = pieces * nodesPerPiece;
-  const delta = new Float64Array(n);
-  const weight = new Float64Array(n);
-  const inverseE = new Float64Array(n);
-  const pieceStart = new Int32Array(pieces + 1);
+  const delta: number[] = [];
+  const weight: number[] = [];
+  const inverseE: number[] = [];
+  const pieceStart: number[] = [];
   const edgeSet = new Set(edges);
   let k = 0;
   for (let p = 0; p < pieces; p++) {
-    pieceStart[p] = k;
+    pieceStart.push(k);
     const a = left[p]!;
     const len = right[p]! - a;
     const edge = edgeSet.has(a);
@@ -136,14 +139,19 @@ export function buildEnergyGrid(ann: Annihilation, xLow: number, xHigh: number, 
       const w = edge ? len * u * rule.weights[j]! : 0.5 * len * rule.weights[j]!;
       const e = 2 * m + d;
       const sigma = ann.sigmaTotalGeV2(e * e);
-      delta[k] = d;
-      inverseE[k] = 1 / e;
-      weight[k] = sigma === 0 ? 0 : (w * sigma * d * (4 * m + d) * e * e) / Math.sqrt(e);
+      delta.push(d);
+      inverseE.push(1 / e);
+      weight.push(sigma === 0 ? 0 : (w * sigma * d * (4 * m + d) * e * e) / Math.sqrt(e));
       k++;
     }
   }
-  pieceStart[pieces] = k;
-  return Object.freeze({ mChiGeV: m, delta, weight, inverseE, pieceLeft: Float64Array.from(left), pieceStart });
+  pieceStart.push(k);
+  return Object.freeze({ mChiGeV: m, delta, weight, inverseE, pieceLeft: left, pieceStart });
+}
+
+/** numeric order for Array.prototype.sort (the cuts are finite) */
+function ascending(a: number, b: number): number {
+  return a - b;
 }
 
 /** Cuts at centre + step 2^k (and centre - step 2^k when `down`) inside (0, deltaMax). */

@@ -151,6 +151,12 @@ function checkInputs(point: ModelPoint, widthMedGeV: number): void {
   if (issues.length > 0) throw new InvalidInputError(issues);
 }
 
+/**
+ * Per-channel output of sigmaTotalGeV2, shared by all instances: written and summed within one
+ * synchronous call that calls nothing else; grown by the constructor to the largest channel count.
+ */
+let channelScratch = new Float64Array(16);
+
 /** Mediator kinds as small integers for the switch of the hot path. */
 const SCALAR = 0;
 const PSEUDOSCALAR = 1;
@@ -189,10 +195,12 @@ class SimplifiedModelAnnihilation implements Annihilation {
   private readonly invMx2: number;
   private readonly nF: number;
   private readonly nAll: number;
-  private readonly C: Float64Array;
-  private readonly F4: Float64Array;
-  private readonly F2: Float64Array;
-  private readonly AX: Float64Array;
+  // per-channel constants as plain arrays of doubles: a typed array above 64 bytes costs ~1 us to
+  // allocate (off-heap backing store), element reads are as fast
+  private readonly C: readonly number[];
+  private readonly F4: readonly number[];
+  private readonly F2: readonly number[];
+  private readonly AX: readonly number[];
   private readonly hasPair: boolean;
   // mediator-pair constants (zero without the pair channel)
   private readonly pr: number;
@@ -207,8 +215,6 @@ class SimplifiedModelAnnihilation implements Annihilation {
   private readonly c22: number;
   /** (1 - x^2) w^2 / 4 = r^2 - 4 r + sh, without sh */
   private readonly pRR: number;
-  /** per-channel output of sigmaTotalGeV2 */
-  private readonly scratch: Float64Array;
 
   constructor(point: ModelPoint, widthMedGeV: number, options: AnnihilationOptions) {
     const fermions = options.fermions ?? DEFAULT_FERMIONS;
@@ -256,10 +262,10 @@ class SimplifiedModelAnnihilation implements Annihilation {
     this.invMx2 = 1 / mx2;
     this.nF = nF;
     this.nAll = channels.length;
-    this.C = Float64Array.from(coeff);
-    this.F4 = Float64Array.from(fourMf2);
-    this.F2 = Float64Array.from(twoMf2);
-    this.AX = Float64Array.from(axialMass);
+    this.C = coeff;
+    this.F4 = fourMf2;
+    this.F2 = twoMf2;
+    this.AX = axialMass;
     this.hasPair = pair !== null;
     this.pr = pair ? pair.r : 0;
     this.pNorm = pair ? pair.norm : 0;
@@ -272,7 +278,7 @@ class SimplifiedModelAnnihilation implements Annihilation {
     this.c21 = pair ? pair.c2[1] : 0;
     this.c22 = pair ? pair.c2[2] : 0;
     this.pRR = this.pr * this.pr - 4 * this.pr;
-    this.scratch = new Float64Array(this.nAll);
+    if (channelScratch.length < this.nAll) channelScratch = new Float64Array(this.nAll);
 
     this.channels = Object.freeze(channels);
     this.poles = Object.freeze(M > 2 * mChi ? [Object.freeze({ massGeV: M, widthGeV: widthMedGeV })] : []);
@@ -303,7 +309,7 @@ class SimplifiedModelAnnihilation implements Annihilation {
     // consumer vanishes, so 0 is returned there instead of the s-wave 1/beta divergence
     if (sGeV2 <= this.fourMx2) return 0;
     const betaChi = Math.sqrt((sGeV2 - this.fourMx2) / sGeV2);
-    return this.sigmaVByChannelGeV2(sGeV2, this.scratch) / (2 * betaChi);
+    return this.sigmaVByChannelGeV2(sGeV2, channelScratch) / (2 * betaChi);
   }
 
   /** f fbar channels into out[0 .. nF-1] (s >= 4 m_chi^2), returns their sum */

@@ -455,6 +455,11 @@ class SplineTable implements SigmaVTable {
   private readonly y: readonly number[];
   private readonly m2: readonly number[];
   private readonly endValue: number;
+  /**
+   * interval of the previous at() call: the solver and the tail read x in increasing order, so it
+   * usually holds the next x too (checked exactly, else the binary search; same interval either way)
+   */
+  private lastLo = 0;
 
   constructor(ann: Annihilation, knobs: ThermalAverageKnobs, xMin: number, xMax: number, us: readonly number[], ys: readonly number[], lnValue: TableAverager) {
     this.ann = ann;
@@ -482,13 +487,20 @@ class SplineTable implements SigmaVTable {
     const last = this.nodes - 1;
     if (!(ux >= this.u0)) return x > 0 ? thermalAverage(this.ann, x, this.knobs) : NaN;
     if (ux >= u[last]!) return this.endValue;
-    // binary search for the interval [u_i, u_i+1] holding ux
-    let lo = 0;
-    let hi = last;
-    while (hi - lo > 1) {
-      const mid = (lo + hi) >> 1;
-      if (u[mid]! <= ux) lo = mid;
-      else hi = mid;
+    // the interval [u_i, u_i+1) holding ux: the previous one or the next, else binary search
+    let lo = this.lastLo;
+    if (!(u[lo]! <= ux && ux < u[lo + 1]!)) {
+      lo++;
+      if (!(lo < last && u[lo]! <= ux && ux < u[lo + 1]!)) {
+        lo = 0;
+        let hi = last;
+        while (hi - lo > 1) {
+          const mid = (lo + hi) >> 1;
+          if (u[mid]! <= ux) lo = mid;
+          else hi = mid;
+        }
+      }
+      this.lastLo = lo;
     }
     const h = u[lo + 1]! - u[lo]!;
     const b = (ux - u[lo]!) / h;
@@ -555,7 +567,8 @@ let workR = new Float64Array(64);
  */
 function notAKnotSecondDerivatives(u: readonly number[], y: readonly number[]): number[] {
   const n = y.length;
-  const m: number[] = new Array<number>(n).fill(0);
+  const m: number[] = [];
+  for (let i = 0; i < n; i++) m.push(0);
   if (workH.length < n) {
     workH = new Float64Array(2 * n);
     workDiag = new Float64Array(2 * n);

@@ -239,63 +239,66 @@ function buildSegment(u0: number, u1: number, branch: (u: number, out: Float64Ar
 const FAST_LOW = buildSegment(Math.log(FAST_T_MIN), Math.log(DOF_FIT_JUNCTION_GEV), (u, o) => lowBranch(Math.exp(u), o));
 const FAST_HIGH = buildSegment(Math.log(DOF_FIT_JUNCTION_GEV), Math.log(FAST_T_MAX), highBranch);
 
+/** Segment and cubic-Hermite weights of the last located T: [h00, h10 du, h01, h11 du] (module scratch). */
+const hermite = new Float64Array(4);
+let hermiteSeg = FAST_HIGH;
+let hermiteK = 0;
+
+/** Locates T (inside [FAST_T_MIN, FAST_T_MAX]) on its branch's table and fills the Hermite weights. */
+function locate(tGeV: number): void {
+  const u = Math.log(tGeV);
+  const seg = tGeV >= DOF_FIT_JUNCTION_GEV ? FAST_HIGH : FAST_LOW;
+  let pos = (u - seg.u0) / seg.du;
+  if (pos < 0) pos = 0;
+  let i = Math.floor(pos);
+  if (i >= seg.n - 1) i = seg.n - 2;
+  const s = pos - i;
+  const s2 = s * s;
+  const s3 = s2 * s;
+  hermite[0] = 2 * s3 - 3 * s2 + 1;
+  hermite[1] = (s3 - 2 * s2 + s) * seg.du;
+  hermite[2] = -2 * s3 + 3 * s2;
+  hermite[3] = (s3 - s2) * seg.du;
+  hermiteSeg = seg;
+  hermiteK = 4 * i;
+}
+
+/** The located cubic of one tabulated quantity: value at column `col`, derivative at col + 1. */
+function interpolated(col: number): number {
+  const d = hermiteSeg.data;
+  const k = hermiteK + col;
+  return hermite[0]! * d[k]! + hermite[1]! * d[k + 1]! + hermite[2]! * d[k + 4]! + hermite[3]! * d[k + 5]!;
+}
+
+/** g_*^{1/2} from the exact fit, outside the tabulated range. */
+function exactGStarHalf(tGeV: number): number {
+  dofInto(tGeV, scratch);
+  return (scratch[1]! / Math.sqrt(scratch[0]!)) * (1 + scratch[2]! / 3);
+}
+
 /**
  * Interpolated h_eff (out[0]) and g_*^{1/2} (out[1]) at T in GeV, for hot loops. Same fit, same
  * branch junction, < 1e-7 relative from dofInto.
  */
 export function fastDofInto(tGeV: number, out: Float64Array): void {
   if (!(tGeV >= FAST_T_MIN && tGeV <= FAST_T_MAX)) {
-    dofInto(tGeV, scratch);
+    out[1] = exactGStarHalf(tGeV);
     out[0] = scratch[1]!;
-    out[1] = (scratch[1]! / Math.sqrt(scratch[0]!)) * (1 + scratch[2]! / 3);
     return;
   }
-  const u = Math.log(tGeV);
-  const seg = tGeV >= DOF_FIT_JUNCTION_GEV ? FAST_HIGH : FAST_LOW;
-  let pos = (u - seg.u0) / seg.du;
-  if (pos < 0) pos = 0;
-  let i = Math.floor(pos);
-  if (i >= seg.n - 1) i = seg.n - 2;
-  const s = pos - i;
-  const s2 = s * s;
-  const s3 = s2 * s;
-  const h00 = 2 * s3 - 3 * s2 + 1;
-  const h10 = s3 - 2 * s2 + s;
-  const h01 = -2 * s3 + 3 * s2;
-  const h11 = s3 - s2;
-  const d = seg.data;
-  const k = 4 * i;
-  const du = seg.du;
-  out[0] = Math.exp(h00 * d[k]! + h10 * du * d[k + 1]! + h01 * d[k + 4]! + h11 * du * d[k + 5]!);
-  out[1] = h00 * d[k + 2]! + h10 * du * d[k + 3]! + h01 * d[k + 6]! + h11 * du * d[k + 7]!;
+  locate(tGeV);
+  out[0] = Math.exp(interpolated(0));
+  out[1] = interpolated(2);
 }
 
 /**
- * Interpolated g_*^{1/2} alone at T in GeV: the out[1] of fastDofInto, same arithmetic (bit-identical),
- * without the exponential that h_eff needs (the Boltzmann tail integral reads only g_*^{1/2}).
+ * Interpolated g_*^{1/2} alone at T in GeV: the out[1] of fastDofInto without the exponential that
+ * h_eff needs (the Boltzmann tail integral reads only g_*^{1/2}).
  */
 export function fastGStarHalf(tGeV: number): number {
-  if (!(tGeV >= FAST_T_MIN && tGeV <= FAST_T_MAX)) {
-    dofInto(tGeV, scratch);
-    return (scratch[1]! / Math.sqrt(scratch[0]!)) * (1 + scratch[2]! / 3);
-  }
-  const u = Math.log(tGeV);
-  const seg = tGeV >= DOF_FIT_JUNCTION_GEV ? FAST_HIGH : FAST_LOW;
-  let pos = (u - seg.u0) / seg.du;
-  if (pos < 0) pos = 0;
-  let i = Math.floor(pos);
-  if (i >= seg.n - 1) i = seg.n - 2;
-  const s = pos - i;
-  const s2 = s * s;
-  const s3 = s2 * s;
-  const h00 = 2 * s3 - 3 * s2 + 1;
-  const h10 = s3 - 2 * s2 + s;
-  const h01 = -2 * s3 + 3 * s2;
-  const h11 = s3 - s2;
-  const d = seg.data;
-  const k = 4 * i;
-  const du = seg.du;
-  return h00 * d[k + 2]! + h10 * du * d[k + 3]! + h01 * d[k + 6]! + h11 * du * d[k + 7]!;
+  if (!(tGeV >= FAST_T_MIN && tGeV <= FAST_T_MAX)) return exactGStarHalf(tGeV);
+  locate(tGeV);
+  return interpolated(2);
 }
 
 // ---------------------------------------------------------------- integral of g_*^{1/2} over T

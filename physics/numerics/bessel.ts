@@ -90,13 +90,7 @@ function chebyshevCoefficients(nu: 0 | 1 | 2): Float64Array {
     }
     samples[j] = Math.sqrt(z) * value;
   }
-  const c = new Float64Array(n);
-  for (let k = 0; k < n; k++) {
-    let sum = 0;
-    for (let j = 0; j < n; j++) sum += samples[j]! * Math.cos((Math.PI * k * (j + 0.5)) / n);
-    c[k] = (2 / n) * sum;
-  }
-  return c;
+  return cosineTransform(samples);
 }
 
 /** Unscaled K_0, K_1 from the ascending series (A&S 9.6.13, 9.6.11); z in (0, 2]. */
@@ -186,13 +180,7 @@ function largeArgumentCoefficients(nu: 1 | 2): Float64Array {
     const z = (2 * LARGE_Z_MIN) / (v + 1);
     samples[j] = Math.sqrt(z) * (nu === 1 ? besselK1Scaled(z) : besselK2Scaled(z));
   }
-  const c = new Float64Array(n);
-  for (let k = 0; k < n; k++) {
-    let sum = 0;
-    for (let j = 0; j < n; j++) sum += samples[j]! * Math.cos((Math.PI * k * (j + 0.5)) / n);
-    c[k] = (2 / n) * sum;
-  }
-  return c;
+  return cosineTransform(samples);
 }
 
 /**
@@ -254,4 +242,16 @@ export function besselK2Scaled(z: number): number {
   if (z > SERIES_MAX && z < Infinity) return clenshaw(CHEB_K2, 4 / z - 1) / Math.sqrt(z);
   scaledK01(z, scratch);
   return scratch[0]! + (2 / z) * scratch[1]!;
+}
+
+/** Chebyshev coefficients from samples at the n Chebyshev nodes cos(pi (j + 1/2) / n) (discrete cosine transform). */
+function cosineTransform(samples: Float64Array): Float64Array {
+  const n = samples.length;
+  const c = new Float64Array(n);
+  for (let k = 0; k < n; k++) {
+    let sum = 0;
+    for (let j = 0; j < n; j++) sum += samples[j]! * Math.cos((Math.PI * k * (j + 0.5)) / n);
+    c[k] = (2 / n) * sum;
+  }
+  return c;
 }

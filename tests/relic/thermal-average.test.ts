@@ -69,20 +69,23 @@ describe('relic.md §2.3 exact-ratio table (Gondolo-Gelmini integral vs the expa
   });
 });
 
+/** m = 100 GeV toys shared by the direct and grid checks against thermal_average.json. */
+const m = 100;
+const M2 = 250;
+const G2 = 250e-5;
+const bw2 = (s: number): number => (M2 * M2 * G2 * G2) / ((s - M2 * M2) ** 2 + M2 * M2 * G2 * G2);
+const bf = (s: number, mf: number): number => Math.sqrt(Math.max(0, 1 - (4 * mf * mf) / s));
+/** The toy annihilations of the cases in thermal_average.json, by case name. */
+const builders: Record<string, () => ReturnType<typeof toyAnnihilation>> = {
+  swave_cm: () => swave(m, 1e-9),
+  pwave_rel: () => pwave(m, 1e-9),
+  resonance_210_1: () => resonance(m, 6.77044e-8, 210, 1),
+  'narrow_250_1e-5': () => toyAnnihilation({ mChiGeV: m, poles: [{ massGeV: M2, widthGeV: G2 }], sigma: (s) => (1e-9 / (2 * betaOf(m, s))) * (1 + 1e3 * bw2(s)) }),
+  threshold_closed_105: () => toyAnnihilation({ mChiGeV: m, thresholdsGeV: [210], sigma: (s) => 1e-10 / (2 * betaOf(m, s)) + (1e-8 * bf(s, 105)) / (2 * betaOf(m, s)) }),
+  threshold_pwave_open_95: () => toyAnnihilation({ mChiGeV: m, sigma: (s) => (1e-9 * bf(s, 95) ** 3) / (2 * betaOf(m, s)) }),
+};
+
 describe('vs scipy quad of eq. (2.1) (thermal_average.json)', () => {
-  const m = 100;
-  const M2 = 250;
-  const G2 = 250e-5;
-  const bw2 = (s: number): number => (M2 * M2 * G2 * G2) / ((s - M2 * M2) ** 2 + M2 * M2 * G2 * G2);
-  const bf = (s: number, mf: number): number => Math.sqrt(Math.max(0, 1 - (4 * mf * mf) / s));
-  const builders: Record<string, () => ReturnType<typeof toyAnnihilation>> = {
-    swave_cm: () => swave(m, 1e-9),
-    pwave_rel: () => pwave(m, 1e-9),
-    resonance_210_1: () => resonance(m, 6.77044e-8, 210, 1),
-    'narrow_250_1e-5': () => toyAnnihilation({ mChiGeV: m, poles: [{ massGeV: M2, widthGeV: G2 }], sigma: (s) => (1e-9 / (2 * betaOf(m, s))) * (1 + 1e3 * bw2(s)) }),
-    threshold_closed_105: () => toyAnnihilation({ mChiGeV: m, thresholdsGeV: [210], sigma: (s) => 1e-10 / (2 * betaOf(m, s)) + (1e-8 * bf(s, 105)) / (2 * betaOf(m, s)) }),
-    threshold_pwave_open_95: () => toyAnnihilation({ mChiGeV: m, sigma: (s) => (1e-9 * bf(s, 95) ** 3) / (2 * betaOf(m, s)) }),
-  };
   for (const c of (fixture as { cases: { name: string; description: string; x: number[]; sigmaV_GeV2: number[] }[] }).cases) {
     it(`${c.name}: ${c.description}`, () => {
       const ann = builders[c.name]!();
@@ -105,19 +108,6 @@ describe('per-point sigma(E) grid (physics/relic/energy-grid.ts) vs scipy quad o
   // still 3000x below the table tolerance (tableRelTol 3e-3). Grid built for x in [3, 1e4] as in
   // relicAbundance, so x = 1 is not tested here (the direct path serves x < tableXMin).
   const nodes = DEFAULT_RELIC_KNOBS.gridNodes;
-  const m = 100;
-  const M2 = 250;
-  const G2 = 250e-5;
-  const bw2 = (s: number): number => (M2 * M2 * G2 * G2) / ((s - M2 * M2) ** 2 + M2 * M2 * G2 * G2);
-  const bf = (s: number, mf: number): number => Math.sqrt(Math.max(0, 1 - (4 * mf * mf) / s));
-  const builders: Record<string, () => ReturnType<typeof toyAnnihilation>> = {
-    swave_cm: () => swave(m, 1e-9),
-    pwave_rel: () => pwave(m, 1e-9),
-    resonance_210_1: () => resonance(m, 6.77044e-8, 210, 1),
-    'narrow_250_1e-5': () => toyAnnihilation({ mChiGeV: m, poles: [{ massGeV: M2, widthGeV: G2 }], sigma: (s) => (1e-9 / (2 * betaOf(m, s))) * (1 + 1e3 * bw2(s)) }),
-    threshold_closed_105: () => toyAnnihilation({ mChiGeV: m, thresholdsGeV: [210], sigma: (s) => 1e-10 / (2 * betaOf(m, s)) + (1e-8 * bf(s, 105)) / (2 * betaOf(m, s)) }),
-    threshold_pwave_open_95: () => toyAnnihilation({ mChiGeV: m, sigma: (s) => (1e-9 * bf(s, 95) ** 3) / (2 * betaOf(m, s)) }),
-  };
   for (const c of (fixture as { cases: { name: string; x: number[]; sigmaV_GeV2: number[] }[] }).cases) {
     it(`${c.name}, x >= 3, ${nodes} nodes per piece: within 1e-6`, () => {
       const grid = buildEnergyGrid(builders[c.name]!(), 3, 1e4, DEFAULT_RELIC_KNOBS.tMax, nodes);

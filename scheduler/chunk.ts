@@ -63,7 +63,8 @@ export const DEFAULT_PHYSICS_MODULE = new URL('../physics/evaluate.ts', import.m
 
 /** Loads a module exporting `prepare` and `evaluate` with the PhysicsEngine signatures. */
 export async function loadPhysicsEngine(moduleUrl: string = DEFAULT_PHYSICS_MODULE): Promise<PhysicsEngine> {
-  const mod = (await import(moduleUrl)) as Partial<PhysicsEngine>;
+  // the default by a literal specifier, so that a bundle of this module contains the physics
+  const mod = (moduleUrl === DEFAULT_PHYSICS_MODULE ? await import('../physics/evaluate.js') : await import(moduleUrl)) as Partial<PhysicsEngine>;
   if (typeof mod.prepare !== 'function' || typeof mod.evaluate !== 'function')
     throw new Error(`physics module ${moduleUrl} must export prepare(setup) and evaluate(point, prepared)`);
   return { prepare: mod.prepare, evaluate: mod.evaluate };

@@ -15,6 +15,7 @@ import { Worker } from 'node:worker_threads';
 import type { Calibration, ChunkResult } from './chunk.js';
 import { InvalidInputError, type Issue } from '../physics/issue.js';
 import { OutcomeQueue } from './outcome-queue.js';
+import { bundledEntry } from '../bin/bundle-cache.mjs';
 import type { ChunkRange } from './plan.js';
 import { TransportStartError, type ChunkOutcome, type ScanWork, type Transport } from './transport.js';
 
@@ -41,7 +42,20 @@ export interface PoolStarted {
   readonly calibration: Calibration | null;
 }
 
+/** the thread through the tsx loader (workers/thread-entry.mjs registers it) */
 const THREAD_ENTRY = new URL('../workers/thread-entry.mjs', import.meta.url);
+const THREAD_SOURCE = new URL('../workers/thread.ts', import.meta.url);
+
+/**
+ * Where a new thread starts: the cached bundle of workers/thread.ts (bin/bundle-cache.mjs; a thread
+ * is ready in about half the time), looked up again for each thread so that a replacement thread runs
+ * the code now on disk, as it would through tsx; or the tsx entry when there is no bundle or a
+ * stand-in physics module (a .ts file) is to be loaded.
+ */
+async function threadEntry(physicsModule: string | undefined): Promise<URL> {
+  const bundle = physicsModule ? null : await bundledEntry(THREAD_SOURCE);
+  return bundle ? new URL(bundle) : THREAD_ENTRY;
+}
 
 type ThreadMessage =
   | { type: 'ready'; observableNames: string[]; knobsJson: string; calibration: Calibration | null }
@@ -120,10 +134,12 @@ export class EmbeddedPool implements Transport {
   }
 
   /** Starts one thread and resolves when its physics is prepared (and calibrated, when asked). */
-  private spawn(calibrateMs = 0): Promise<PoolStarted> {
+  private async spawn(calibrateMs = 0): Promise<PoolStarted> {
     const work = this.work!;
+    const entry = await threadEntry(this.physicsModule);
+    if (this.closed) throw new TransportStartError('the pool closed while a thread was starting');
     return new Promise((resolve, reject) => {
-      const worker = new Worker(THREAD_ENTRY, {
+      const worker = new Worker(entry, {
         workerData: { resolvedSpecJson: work.resolvedSpecJson, physicsModule: this.physicsModule, calibrateMs },
       });
       const slot: Slot = { worker, posted: [] };

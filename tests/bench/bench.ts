@@ -14,6 +14,7 @@ const PARTS: readonly Part[] = [
   { name: 'direct', run: async () => (await import('./direct-bench.js')).benchDirect() },
   { name: 'indirect', run: async () => (await import('./indirect-bench.js')).benchIndirect() },
   { name: 'point', run: async () => (await import('./point-bench.js')).benchPoint() },
+  { name: 'startup', run: async () => (await import('./startup-bench.js')).benchStartup() },
   { name: 'scan', run: async () => (await import('./scan-bench.js')).benchScan() },
   { name: 'constraints', run: async () => (await import('./constraints-bench.js')).benchConstraints() },
   { name: 'redis', run: async () => (await import('./redis-bench.js')).benchRedis() },

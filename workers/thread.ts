@@ -1,7 +1,10 @@
 /**
  * Worker thread of the embedded pool: prepares the scan's physics once (and, when asked, times a
  * calibration of the cost per point, which also warms this thread's compiled code), then evaluates
- * the chunks the pool sends and posts columnar results back (typed arrays transferred, not copied).
+ * the chunks the pool sends and posts columnar results back. The typed arrays are copied, not
+ * transferred: a chunk's columns are a few hundred kB (well under a millisecond to copy), while
+ * transferring them made this thread's next chunks ~8 % slower to evaluate (thread CPU per 1500-point
+ * chunk, medians of 8 alternating trials: 417 ms transferred, 382 ms copied).
  *
  * Messages in:  { type: 'chunk', range }
  * Messages out: { type: 'ready', observableNames, knobsJson, calibration } | { type: 'fatal', error, issues? }
@@ -49,8 +52,7 @@ port.on('message', (msg: { type: 'chunk'; range: ChunkRange }) => {
   if (msg.type !== 'chunk') return;
   try {
     const result = evaluator.evaluate(msg.range);
-    const transfer = result.columns.filter((c): c is Float64Array => c instanceof Float64Array).map((c) => c.buffer as ArrayBuffer);
-    port.postMessage({ type: 'result', result }, transfer);
+    port.postMessage({ type: 'result', result });
   } catch (err) {
     port.postMessage({ type: 'error', chunk: msg.range.chunk, error: describe(err) });
   }

@@ -1,9 +1,9 @@
 /**
  * Speed of the scan engine (`npm run bench -- scan`):
- *  - physics only: the chunk evaluator in this thread over a scan's points (no pool, no ledger);
- *  - `run` end to end on the embedded pool with 1 and 2 workers over the same points, as points/s
- *    and as overhead against the physics-only rate times the worker count (target <= 5 %; on a
- *    2-core machine with other load the 2-worker figure mostly measures the load);
+ *  - physics only: 1 or 2 fresh bare worker threads evaluating all of a scan's points (no pool, no
+ *    scheduler, no ledger), against `run` end to end on the embedded pool with as many workers over
+ *    the same points (target: overhead <= 5 %), alternating, medians of ROUNDS; both sides pay cold
+ *    compiled code and caches, and with 2 threads on a 2-core machine both share the same contention;
  *  - `darksieve run` through the CLI in a fresh process on 1 worker, as users run it (the in-process
  *    runs above share this process's already loaded modules): CPU of the whole process, all threads;
  *  - threads: CPU per chunk in the pool and in bare worker threads (no pool, no scheduler) with 1 and 2
@@ -133,14 +133,35 @@ export async function benchThreads(specJson: string, observables: readonly strin
   return lines;
 }
 
-/** Wall and CPU seconds of evaluating every point in this thread with a fresh evaluator. */
-async function physicsOnly(specJson: string, total: number): Promise<{ wallS: number; cpuS: number }> {
-  const evaluator = await ChunkEvaluator.create(specJson, await loadPhysicsEngine());
-  const c0 = process.cpuUsage();
-  const t0 = performance.now();
-  for (let first = 0; first < total; first += 100) evaluator.evaluate({ chunk: 0, firstId: first, n: Math.min(100, total - first) });
-  return { wallS: (performance.now() - t0) / 1000, cpuS: cpuSeconds(c0) };
+/**
+ * Physics only: wall seconds for `threads` fresh worker threads (bare, no pool, no scheduler, no
+ * ledger; compiled code and per-scan caches cold, as in a run's threads) to evaluate every point of
+ * the scan, 1000-point ranges dealt round-robin, timed from 'go' after each has loaded and prepared
+ * the physics. Also the CPU seconds of this process meanwhile (all threads).
+ */
+async function physicsOnly(specJson: string, total: number, threads: number): Promise<{ wallS: number; cpuS: number }> {
+  const size = 1000;
+  const ranges: ChunkRange[] = Array.from({ length: Math.ceil(total / size) }, (_, c) => ({ chunk: c, firstId: c * size, n: Math.min(size, total - c * size) }));
+  const workers = Array.from({ length: threads }, (_, k) => new Worker(new URL('./bare-thread.mjs', import.meta.url), {
+    workerData: { resolvedSpecJson: specJson, warmUp: false, ranges: ranges.filter((_, i) => i % threads === k) },
+  }));
+  try {
+    await Promise.all(workers.map((w) => new Promise((resolve) => w.once('message', resolve))));
+    const c0 = process.cpuUsage();
+    const t0 = performance.now();
+    await Promise.all(workers.map((w) => {
+      const done = new Promise((resolve) => w.once('message', resolve));
+      w.postMessage('go');
+      return done;
+    }));
+    return { wallS: (performance.now() - t0) / 1000, cpuS: cpuSeconds(c0) };
+  } finally {
+    await Promise.all(workers.map((w) => w.terminate()));
+  }
 }
+
+const ROUNDS = 3;
+const median = (xs: readonly number[]): number => [...xs].sort((a, b) => a - b)[Math.floor(xs.length / 2)]!;
 
 /** Synthetic columnar chunk results in a scan's layout (invented values). */
 function syntheticChunk(chunk: number, firstId: number, n: number, observables: readonly string[]): ChunkResult {
@@ -212,29 +233,36 @@ export async function benchScan(): Promise<{ lines: string[] }> {
     writeFileSync(specFile, JSON.stringify(BENCH_SPEC));
     const spec = parseSpec(BENCH_SPEC).spec!;
     const total = makePlan(spec, 1).total;
-    const physics = await physicsOnly(resolvedSpecJson(spec), total);
-    const physicsRate = total / physics.wallS;
-    lines.push(`physics only (this thread, cold per-scan caches): ${total} points at ${physicsRate.toFixed(0)} points/s wall, ${(1000 * physics.cpuS / total).toFixed(2)} ms CPU per point`);
+    // physics only and `run` alternate, ROUNDS times, so that both see the same machine load
     for (const workers of [1, 2]) {
-      const c0 = process.cpuUsage();
-      const t0 = performance.now();
-      const db = path.join(dir, `run-${workers}.db`);
-      const s = await runScan({ specPath: specFile, dbPath: db, workers, quiet: true, log: silent });
-      const wallS = (performance.now() - t0) / 1000;
-      const cpuS = cpuSeconds(c0);
-      const evalMs = sumEvalMs(db);
-      const endToEnd = s.pointsThisRun / wallS;
-      const steady = s.pointsThisRun / (s.computeMs / 1000);
+      const rows: { physics: { wallS: number; cpuS: number }; wallS: number; cpuS: number; computeS: number; evalS: number }[] = [];
+      for (let round = 0; round < ROUNDS; round++) {
+        const physics = await physicsOnly(resolvedSpecJson(spec), total, workers);
+        const db = path.join(dir, `run-${workers}-${round}.db`);
+        const c0 = process.cpuUsage();
+        const t0 = performance.now();
+        const s = await runScan({ specPath: specFile, dbPath: db, workers, quiet: true, log: silent });
+        if (s.pointsThisRun !== total) throw new Error(`run stored ${s.pointsThisRun} of ${total} points`);
+        rows.push({ physics, wallS: (performance.now() - t0) / 1000, cpuS: cpuSeconds(c0), computeS: s.computeMs / 1000, evalS: sumEvalMs(db) / 1000 });
+      }
+      const m = (f: (r: (typeof rows)[number]) => number): number => median(rows.map(f));
+      const plural = workers > 1 ? 's' : '';
       lines.push(
-        `run, ${workers} worker${workers > 1 ? 's' : ''}: ${endToEnd.toFixed(0)} points/s end to end (overhead ${(100 * ((physicsRate * workers) / endToEnd - 1)).toFixed(1)} % vs ${workers} x physics only; ` +
-          `includes validation, calibration, thread start), ${steady.toFixed(0)} points/s once workers are ready (overhead ${(100 * ((physicsRate * workers) / steady - 1)).toFixed(1)} %); ` +
-          `CPU ${cpuS.toFixed(1)} s vs ${physics.cpuS.toFixed(1)} s physics only (CPU overhead ${(100 * (cpuS / physics.cpuS - 1)).toFixed(1)} %; target <= 5 %)`,
+        `physics only, ${workers} fresh thread${plural}: ${total} points in ${m((r) => r.physics.wallS).toFixed(2)} s wall (${(total / m((r) => r.physics.wallS)).toFixed(0)} points/s), ` +
+          `${(1000 * m((r) => r.physics.cpuS) / total).toFixed(2)} ms CPU per point`,
       );
       lines.push(
-        `  scheduling overhead, ${workers} worker${workers > 1 ? 's' : ''}: ${(100 * ((s.computeMs * workers) / evalMs - 1)).toFixed(1)} % ` +
-          `(compute wall x workers vs the workers' own chunk evaluation time, ${(evalMs / 1000).toFixed(1)} s; physics-only took ${physics.wallS.toFixed(1)} s)`,
+        `run, ${workers} worker${plural}, end to end (validation, thread start, calibration, ledger, judging): ${m((r) => r.wallS).toFixed(2)} s wall, ` +
+          `overhead ${(100 * (m((r) => r.wallS / r.physics.wallS) - 1)).toFixed(1)} % (target <= 5 %); ` +
+          `once the workers are ready ${(100 * (m((r) => r.computeS / r.physics.wallS) - 1)).toFixed(1)} %; start-up and closing ${m((r) => r.wallS - r.computeS).toFixed(2)} s; ` +
+          `CPU overhead ${(100 * (m((r) => r.cpuS / r.physics.cpuS) - 1)).toFixed(1)} % (medians of ${ROUNDS} alternating rounds, per-round ratios: ${rows.map((r) => (r.wallS / r.physics.wallS).toFixed(3)).join(', ')})`,
+      );
+      lines.push(
+        `  scheduling overhead, ${workers} worker${plural}: ${(100 * (m((r) => (r.computeS * workers) / r.evalS) - 1)).toFixed(1)} % ` +
+          `(compute wall x workers vs the threads' own chunk evaluation time)`,
       );
     }
+    const physics = await physicsOnly(resolvedSpecJson(spec), total, 1);
     const cli = cliRunCpu([specFile, '--db', path.join(dir, 'cli-1.db'), '--workers', '1', '--quiet']);
     lines.push(
       `darksieve run through the CLI, fresh process, 1 worker: ${(total / cli.wallS).toFixed(0)} points/s end to end; ` +

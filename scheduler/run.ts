@@ -209,6 +209,17 @@ function shellQuote(arg: string): string {
   return /^[A-Za-z0-9_./=:-]+$/.test(arg) ? arg : `'${arg.replace(/'/g, `'\\''`)}'`;
 }
 
+/**
+ * The command that resumes a scan: the same spec, ledger and worker count, and the same Redis when
+ * one was used (resuming without it would finish on the embedded pool and leave the queue paused).
+ * `redactedRedisUrl` is the Redis URL with any password shown as *** (passwords are never printed);
+ * describeRun then says to give the password as before.
+ */
+export function resumeCommandFor(options: Pick<RunOptions, 'specPath' | 'workers'>, dbPath: string, redactedRedisUrl?: string): string {
+  const args = ['darksieve', 'run', options.specPath, '--db', dbPath, ...(options.workers ? ['--workers', String(options.workers)] : []), ...(redactedRedisUrl ? ['--redis', redactedRedisUrl] : [])];
+  return args.map(shellQuote).join(' ');
+}
+
 export async function runScan(options: RunOptions): Promise<RunSummary> {
   const started = performance.now();
   const log = options.log ?? ((line: string) => process.stderr.write(`${line}\n`));
@@ -296,8 +307,7 @@ export async function runScan(options: RunOptions): Promise<RunSummary> {
     ledger.setStatus(scan.id, 'running');
     const write = ledger.chunkWriter(scan.id, columnLayout(observableNames));
     const before = ledger.progress(scan.id);
-    const resumeArgs = ['darksieve', 'run', options.specPath, '--db', dbPath, ...(options.workers ? ['--workers', String(options.workers)] : [])];
-    const resumeCommand = resumeArgs.map(shellQuote).join(' ');
+    const resumeCommand = resumeCommandFor(options, dbPath, options.redisUrl ? (await import('./redis/connection.js')).redactRedisUrl(options.redisUrl) : undefined);
     log(
       `${decision.existing ? 'resuming' : 'starting'} scan '${spec.name}' (id ${scan.id}) in ${dbPath}: ${plan.total} points in ${plan.chunkCount} chunks of ${chunkSize}` +
         `${before.chunksDone > 0 ? `, ${before.chunksDone} chunks already done` : ''}; ${transport.description}`,
@@ -412,7 +422,10 @@ export function describeRun(s: RunSummary): string[] {
   ];
   if (s.erroredPoints > 0) lines.push(`${s.erroredPoints} points could not be evaluated; their flags hold the error`);
   if (s.chunksFailed > 0) lines.push(`${s.chunksFailed} chunks failed; run the same command again to retry them`);
-  if (s.status !== 'done') lines.push(`resume with: ${s.resumeCommand}`);
+  if (s.status !== 'done') {
+    lines.push(`resume with: ${s.resumeCommand}`);
+    if (s.resumeCommand.includes(':***@')) lines.push('(the Redis password is shown as ***: give the URL with its password, or set REDIS_URL and leave out --redis)');
+  }
   if (s.judged) lines.push(formatSummary(s.judged, `${s.scanId} (${s.scanName})`).trimEnd());
   if (s.judgeNote) lines.push(s.judgeNote);
   lines.push(`ledger: ${s.dbPath}`);

@@ -8,6 +8,7 @@ import path from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { runScan, type RunOptions } from '../../scheduler/run.js';
 import { RedisTransport } from '../../scheduler/redis/transport.js';
+import { redactRedisUrl } from '../../scheduler/redis/connection.js';
 import { WorkerService } from '../../scheduler/redis/worker-service.js';
 import { FAKE_PHYSICS, pointRows, query, tempDir, writeSpec } from '../scan/helpers.js';
 import { CRASHY_PHYSICS, MECH_SPEC, MECH_TOTAL, TEST_REDIS_URL, announcedScans, cleanupPrefix, keysUnder, newPrefix, redisAvailable, waitFor } from './helpers.js';
@@ -72,8 +73,10 @@ describe.skipIf(!available)('scans through Redis (BullMQ)', () => {
     await worker.start();
     const db = path.join(tmp.dir, 'crashy.db');
     try {
-      const s = await run(db, transport(p, { attempts: 2, backoffMs: 50 }));
+      const s = await run(db, transport(p, { attempts: 2, backoffMs: 50 }), { redisUrl: TEST_REDIS_URL });
       expect(s.status).toBe('incomplete');
+      // the printed way to resume keeps the scan on this Redis
+      expect(s.resumeCommand).toContain(` --redis ${redactRedisUrl(TEST_REDIS_URL)}`);
       expect(s.chunksFailed).toBe(1);
       const failed = query<{ attempts: number; error: string }>(db, `SELECT attempts, error FROM chunks WHERE status = 'failed'`);
       expect(failed.length).toBe(s.chunksFailed);

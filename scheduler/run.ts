@@ -32,6 +32,7 @@ import { numericObservableNames } from '../physics/observables.js';
 import { compileConstraints, type CompiledConstraints } from './constraints/compile.js';
 import { formatSummary, judgeScan, type JudgeSummary } from './constraints/judge.js';
 import { contextFromSpec } from './constraints/scan-context.js';
+import { ledgerScanKey } from './redis/keys.js';
 
 /** The constraint set name under which a run judges its spec's own constraints. */
 export const SPEC_CONSTRAINT_SET = 'spec';
@@ -333,7 +334,7 @@ export async function runScan(options: RunOptions): Promise<RunSummary> {
     }
 
     try {
-      if (!opened) await transport.open({ scanKey: `s${scan.id}-${hash.slice(0, 12)}`, resolvedSpecJson: resolved, observableNames });
+      if (!opened) await transport.open({ scanKey: ledgerScanKey(scan.id, hash), resolvedSpecJson: resolved, observableNames });
     } catch (err) {
       // the scan row stays (a rerun resumes it) but must not claim to be running
       ledger.setStatus(scan.id, 'interrupted');

@@ -26,6 +26,11 @@ export function ledgerTag(absoluteDbPath: string, host: string = hostname()): st
   return createHash('sha256').update(`${host}\n${absoluteDbPath}`).digest('hex').slice(0, 8);
 }
 
+/** The key naming a ledger's scan in Redis: scan id and the start of its spec hash. */
+export function ledgerScanKey(scanId: number, specHash: string): string {
+  return `s${scanId}-${specHash.slice(0, 12)}`;
+}
+
 export function workQueueName(scanKey: string, tag: string): string {
   if (!/^[A-Za-z0-9-]+$/.test(scanKey)) throw new Error(`scan key ${scanKey} must hold only letters, digits and '-'`);
   return `scan-${scanKey}-${tag}`;

@@ -8,7 +8,7 @@
 import path from 'node:path';
 import { Queue } from 'bullmq';
 import { bullConnection, openClient, probeRedis, redactRedisUrl, redisOptionsFromUrl } from './connection.js';
-import { ledgerTag, liveWorkers, workQueueName } from './keys.js';
+import { ledgerScanKey, ledgerTag, liveWorkers, workQueueName } from './keys.js';
 
 export interface RedisScanLive {
   readonly scan_id: number;
@@ -39,10 +39,11 @@ export async function redisLiveStatus(url: string, prefix: string, dbPath: strin
     const tag = ledgerTag(path.resolve(dbPath));
     const live: RedisScanLive[] = [];
     for (const s of scans) {
-      const name = workQueueName(`s${s.id}-${s.spec_hash.slice(0, 12)}`, tag);
-      if ((await client.exists(`${prefix}:${name}:meta`)) === 0) continue;
+      const name = workQueueName(ledgerScanKey(s.id, s.spec_hash), tag);
       const queue = new Queue(name, { connection: bullConnection(options), prefix });
       try {
+        // a queue BullMQ has set up has its meta key (BullMQ's own key name, not a copy of its format)
+        if ((await client.exists(queue.keys.meta!)) === 0) continue;
         const c = await queue.getJobCounts('wait', 'waiting', 'delayed', 'prioritized', 'active', 'failed');
         live.push({
           scan_id: s.id, queue: name, chunks_queued: (c.wait ?? c.waiting ?? 0) + (c.delayed ?? 0) + (c.prioritized ?? 0),

@@ -83,21 +83,25 @@ export interface Calibration {
   readonly errors: number;
 }
 
+/** Calibration rounds: each places one block of ids in each of the scan's `blocks` equal parts. */
+export const CALIBRATION_ROUNDS = 8;
+
 /**
  * Times real evaluations: after a short warm-up (first-call compilation), blocks of consecutive ids
  * spread over the scan, as chunks see them (per-scan caches fill as in a run), until the budget is
- * spent. About `budgetMs` of compute; the results are thrown away.
+ * spent. About `budgetMs` of compute; the results are thrown away. Threads calibrating together take
+ * interleaved rounds (`firstRound`, `roundStep`), so that between them they sample different ids.
  */
-export function calibrateEvaluator(evaluator: ChunkEvaluator, budgetMs: number, blocks = 6, blockSize = 8): Calibration {
+export function calibrateEvaluator(evaluator: ChunkEvaluator, budgetMs: number, blocks = 6, blockSize = 8, firstRound = 0, roundStep = 1): Calibration {
   const total = evaluator.totalPoints;
   const n = Math.min(blockSize, total);
   evaluator.evaluate({ chunk: 0, firstId: 0, n: Math.min(3, total) });
   let points = 0;
   let errors = 0;
   let ms = 0;
-  for (let round = 0; ms < budgetMs && round < 8; round++) {
+  for (let round = firstRound % CALIBRATION_ROUNDS; ms < budgetMs && round < CALIBRATION_ROUNDS; round += roundStep) {
     for (let b = 0; b < blocks && ms < budgetMs; b++) {
-      const first = Math.min(total - n, Math.floor(((b + (round + 0.5) / 8) * total) / blocks));
+      const first = Math.min(total - n, Math.floor(((b + (round + 0.5) / CALIBRATION_ROUNDS) * total) / blocks));
       const r = evaluator.evaluate({ chunk: 0, firstId: first, n });
       ms += r.evalMs;
       points += n;
@@ -106,6 +110,13 @@ export function calibrateEvaluator(evaluator: ChunkEvaluator, budgetMs: number, 
     }
   }
   return { points, msPerPoint: ms / points, errors };
+}
+
+/** Calibrations of several threads as one: all their points, the cost per point over all of them. */
+export function mergeCalibrations(parts: readonly Calibration[]): Calibration {
+  const points = parts.reduce((a, c) => a + c.points, 0);
+  const ms = parts.reduce((a, c) => a + c.msPerPoint * c.points, 0);
+  return { points, msPerPoint: points > 0 ? ms / points : NaN, errors: parts.reduce((a, c) => a + c.errors, 0) };
 }
 
 /** Text stored in flags for a point that could not be evaluated. */

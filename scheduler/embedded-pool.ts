@@ -12,7 +12,7 @@
  */
 import { availableParallelism } from 'node:os';
 import { Worker } from 'node:worker_threads';
-import type { Calibration, ChunkResult } from './chunk.js';
+import { mergeCalibrations, type Calibration, type ChunkResult } from './chunk.js';
 import { InvalidInputError, type Issue } from '../physics/issue.js';
 import { OutcomeQueue } from './outcome-queue.js';
 import { bundledEntry } from '../bin/bundle-cache.mjs';
@@ -27,9 +27,11 @@ export interface EmbeddedPoolOptions {
   /** module exporting prepare/evaluate; default physics/evaluate.ts (tests inject others) */
   readonly physicsModule?: string;
   /**
-   * when > 0: the first thread times about this much compute after preparing (chunk.ts
-   * calibrateEvaluator, which also warms that thread's compiled code) and open() makes it
-   * available as `started.calibration`; default 0
+   * when > 0: the threads starting with the pool share about this much compute time, timed after
+   * preparing (chunk.ts calibrateEvaluator, interleaved rounds, each thread warming its own compiled
+   * code, which its first chunk would otherwise do), and open() makes their merged result available
+   * as `started.calibration`; default 0. Sharing it keeps every thread busy until dispatch starts
+   * instead of leaving all but one idle while the first calibrates.
    */
   readonly calibrateMs?: number;
 }
@@ -38,9 +40,12 @@ export interface EmbeddedPoolOptions {
 export interface PoolStarted {
   /** prepare()'s knobs as JSON (every thread runs the same code on the same spec) */
   readonly knobsJson: string;
-  /** the first thread's calibration, when asked for */
+  /** the threads' calibrations merged, when asked for */
   readonly calibration: Calibration | null;
 }
+
+/** What one thread reported when it became ready (its own calibration only). */
+type ThreadStarted = PoolStarted;
 
 /** the thread through the tsx loader (workers/thread-entry.mjs registers it) */
 const THREAD_ENTRY = new URL('../workers/thread-entry.mjs', import.meta.url);
@@ -105,13 +110,16 @@ export class EmbeddedPool implements Transport {
   async open(work: ScanWork): Promise<void> {
     if (this.work) throw new Error('the pool is already open');
     this.work = work;
-    const started = await Promise.allSettled(Array.from({ length: this.workers }, (_, i) => this.spawn(i === 0 ? this.calibrateMs : 0)));
+    const share = this.calibrateMs > 0 ? { ms: this.calibrateMs / this.workers, step: this.workers } : null;
+    const started = await Promise.allSettled(Array.from({ length: this.workers }, (_, i) => this.spawn(share ? { ms: share.ms, first: i, step: share.step } : null)));
     const failed = started.find((s): s is PromiseRejectedResult => s.status === 'rejected');
     if (failed) {
       await this.close();
       throw failed.reason;
     }
-    this.started = (started[0] as PromiseFulfilledResult<PoolStarted>).value;
+    const all = started.map((s) => (s as PromiseFulfilledResult<ThreadStarted>).value);
+    const parts = all.map((s) => s.calibration).filter((c): c is Calibration => c !== null);
+    this.started = { knobsJson: all[0]!.knobsJson, calibration: parts.length > 0 ? mergeCalibrations(parts) : null };
   }
 
   dispatch(range: ChunkRange): void {
@@ -134,13 +142,16 @@ export class EmbeddedPool implements Transport {
   }
 
   /** Starts one thread and resolves when its physics is prepared (and calibrated, when asked). */
-  private async spawn(calibrateMs = 0): Promise<PoolStarted> {
+  private async spawn(calibrate: { ms: number; first: number; step: number } | null = null): Promise<ThreadStarted> {
     const work = this.work!;
     const entry = await threadEntry(this.physicsModule);
     if (this.closed) throw new TransportStartError('the pool closed while a thread was starting');
     return new Promise((resolve, reject) => {
       const worker = new Worker(entry, {
-        workerData: { resolvedSpecJson: work.resolvedSpecJson, physicsModule: this.physicsModule, calibrateMs },
+        workerData: {
+          resolvedSpecJson: work.resolvedSpecJson, physicsModule: this.physicsModule,
+          calibrateMs: calibrate?.ms ?? 0, calibrateRounds: calibrate ? { first: calibrate.first, step: calibrate.step } : undefined,
+        },
       });
       const slot: Slot = { worker, posted: [] };
       let ready = false;

@@ -8,7 +8,7 @@
  *      same spec hash, create a new one (fresh ledger, or `--new`), or refuse (same name, different
  *      spec, different constants edition);
  *   2b. prepare the physics where it will run: the embedded pool's threads start now (they report
- *      the knobs; the first one calibrates a new scan's chunk size, warming its own compiled code),
+ *      the knobs; together they calibrate a new scan's chunk size, each warming its own compiled code),
  *      so this thread never loads the physics; for workers elsewhere (Redis) it is prepared here.
  *      A setup the physics refuses, or other knobs than a resumed scan's, is refused here;
  *   3. only then open the ledger for writing.
@@ -114,7 +114,7 @@ export function preparePhysics(spec: ScanSpec, engine: PhysicsEngine): PreparedP
 
 export type { Calibration };
 
-/** Calibrates in this process (see calibrateEvaluator); `check` uses it, `run` calibrates in its first worker thread. */
+/** Calibrates in this process (see calibrateEvaluator); `check` uses it, `run` calibrates in its worker threads. */
 export async function calibrate(spec: ScanSpec, engine: PhysicsEngine, budgetMs = 600, blocks = 6, blockSize = 8): Promise<Calibration> {
   return calibrateEvaluator(await ChunkEvaluator.create(resolvedSpecJson(spec), engine), budgetMs, blocks, blockSize);
 }
@@ -242,8 +242,8 @@ export async function runScan(options: RunOptions): Promise<RunSummary> {
   decision.warnings.forEach(log);
   const calibrating = !decision.existing && options.chunkSize === undefined;
 
-  // the physics is prepared where it runs: by the pool's threads (the first one also calibrates,
-  // which warms its compiled code instead of this thread's), or here for workers elsewhere
+  // the physics is prepared where it runs: by the pool's threads (which also calibrate, warming
+  // their own compiled code rather than this thread's), or here for workers elsewhere
   let transport: Transport;
   let observableNames: readonly string[];
   let knobsJson: string;

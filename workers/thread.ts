@@ -20,6 +20,8 @@ interface ThreadData {
   readonly physicsModule?: string;
   /** when > 0: time about this much compute after preparing and report it with 'ready' */
   readonly calibrateMs?: number;
+  /** which calibration rounds this thread takes: firstRound, firstRound + roundStep, ... */
+  readonly calibrateRounds?: { readonly first: number; readonly step: number };
 }
 
 const port = parentPort!;
@@ -41,7 +43,8 @@ try {
   process.exit(1);
 }
 try {
-  const calibration = data.calibrateMs ? calibrateEvaluator(evaluator, data.calibrateMs) : null;
+  const rounds = data.calibrateRounds ?? { first: 0, step: 1 };
+  const calibration = data.calibrateMs ? calibrateEvaluator(evaluator, data.calibrateMs, undefined, undefined, rounds.first, rounds.step) : null;
   port.postMessage({ type: 'ready', observableNames: evaluator.prepared.observableNames, knobsJson: JSON.stringify(evaluator.prepared.knobs ?? {}), calibration });
 } catch (err) {
   port.postMessage({ type: 'fatal', error: describe(err) });

@@ -160,7 +160,7 @@ async function physicsOnly(specJson: string, total: number, threads: number): Pr
   }
 }
 
-const ROUNDS = 3;
+const ROUNDS = 5;
 const median = (xs: readonly number[]): number => [...xs].sort((a, b) => a - b)[Math.floor(xs.length / 2)]!;
 
 /** Synthetic columnar chunk results in a scan's layout (invented values). */

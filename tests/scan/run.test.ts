@@ -9,6 +9,7 @@ import Database from 'better-sqlite3';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { InvalidInputError } from '../../physics/issue.js';
 import { describeRun, resumeCommandFor, runScan, type RunOptions } from '../../scheduler/run.js';
+import { mergeCalibrations } from '../../scheduler/chunk.js';
 import { redactRedisUrl } from '../../scheduler/redis/connection.js';
 import { FAKE_PHYSICS, pointRows, query, tempDir, writeSpec } from './helpers.js';
 
@@ -114,7 +115,7 @@ describe('run on the embedded pool', () => {
     for (const r of tied) expect(r.m_med).toBe(3 * r.m_chi);
   });
 
-  it('without --chunk a new scan takes its chunk size from the first thread\'s calibration; results unchanged', async () => {
+  it('without --chunk a new scan takes its chunk size from the threads\' calibration; results unchanged', async () => {
     const db = path.join(tmp.dir, 'calibrated.db');
     const s = await run({ dbPath: db, chunkSize: undefined });
     // the stand-in physics is fast (far below 1.5 s per chunk): the spread sets the size, 4 chunks per worker
@@ -193,5 +194,32 @@ describe('the printed resume command', () => {
     expect(lines).toContain(`resume with: ${secret}`);
     expect(lines.join('\n')).toMatch(/password is shown as \*\*\*/);
     expect(describeRun({ ...summary, resumeCommand: plain }).join('\n')).not.toMatch(/password/);
+  });
+});
+
+describe('calibration shared by the threads', () => {
+  it('merges as the cost per point over all timed points', () => {
+    // common practice, no source: a points-weighted mean of the per-thread costs
+    const merged = mergeCalibrations([{ points: 40, msPerPoint: 2, errors: 1 }, { points: 10, msPerPoint: 7, errors: 0 }]);
+    expect(merged).toEqual({ points: 50, msPerPoint: (40 * 2 + 10 * 7) / 50, errors: 1 });
+    expect(mergeCalibrations([{ points: 8, msPerPoint: 0.5, errors: 0 }])).toEqual({ points: 8, msPerPoint: 0.5, errors: 0 });
+  });
+
+  it('the pool\'s threads each time a share of the budget on interleaved rounds', async () => {
+    const { EmbeddedPool } = await import('../../scheduler/embedded-pool.js');
+    const { parseSpec, resolvedSpecJson } = await import('../../scheduler/spec.js');
+    const { numericObservableNames } = await import('../../physics/observables.js');
+    const parsed = parseSpec(JSON.parse(readFileSync(specFile, 'utf8'))).spec!;
+    // a budget the rounds run out before: each thread then runs exactly its own rounds
+    const pool = new EmbeddedPool({ workers: 2, physicsModule: FAKE_PHYSICS, calibrateMs: 600_000 });
+    try {
+      await pool.open({ scanKey: 'cal', resolvedSpecJson: resolvedSpecJson(parsed), observableNames: numericObservableNames(['xe_fake'], []) });
+      const c = pool.started!.calibration!;
+      // 8 rounds of 6 blocks of 8 points in all, 4 rounds in each of the 2 threads
+      expect(c.points).toBe(2 * 4 * 6 * 8);
+      expect(c.msPerPoint).toBeGreaterThan(0);
+    } finally {
+      await pool.close();
+    }
   });
 });

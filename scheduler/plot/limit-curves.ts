@@ -1,6 +1,6 @@
 /**
- * Limit curves to draw over a plane: the `limit_curve` constraints whose observable and `versus`
- * parameter are the plane's y and x. The curve drawn is the one the verdicts were judged against:
+ * Limit curves to draw over a plane: the curves of `limit_curve` and `sd_limit_pair` constraints
+ * whose observable and `versus` parameter are the plane's y and x. The curve drawn is the one the verdicts were judged against:
  * the resolved definition of the constraint set (scheduler/constraints stores the table inline in
  * `constraint_sets.definition_json`). A scan not yet judged falls back to the spec's constraints,
  * read with the constraints module's own curve-file parser, paths taken from the ledger's directory
@@ -24,23 +24,50 @@ interface CurveConstraint {
   readonly table?: { readonly x: readonly number[]; readonly y: readonly number[] };
   /** file to read (spec fallback) */
   readonly file?: string;
+  /** said under the picture when the curve is drawn: how its verdicts differ from "below the line passes" */
+  readonly note?: string;
 }
 
 const str = (v: unknown): string | undefined => (typeof v === 'string' && v !== '' ? v : undefined);
 
+/** An inline curve table of a resolved definition ({x, y, ...}), if well formed. */
+function tableOf(curve: unknown): CurveConstraint['table'] {
+  const t = curve as { x?: unknown; y?: unknown } | undefined;
+  return t && Array.isArray(t.x) && Array.isArray(t.y) ? { x: t.x as number[], y: t.y as number[] } : undefined;
+}
+
+/**
+ * The curves of `limit_curve` constraints (one each) and of `sd_limit_pair` constraints (the proton
+ * curve over sigma_sd_p_cm2, the neutron curve over sigma_sd_n_cm2), with a note where the verdict is
+ * not "the plotted observable below the line": an SI curve measured on a target element is compared
+ * with the isospin-corrected cross section on that element, and the SD sum rule judges proton and
+ * neutron together.
+ */
 function fromList(list: unknown): CurveConstraint[] {
   if (!Array.isArray(list)) return [];
   const out: CurveConstraint[] = [];
   list.forEach((raw: unknown, k) => {
     if (typeof raw !== 'object' || raw === null) return;
     const c = raw as Record<string, unknown>;
-    if (c.kind !== 'limit_curve') return;
-    const observable = str(c.observable);
-    if (!observable) return;
-    const curve = c.curve as { x?: unknown; y?: unknown } | undefined;
-    const table = curve && Array.isArray(curve.x) && Array.isArray(curve.y)
-      ? { x: curve.x as number[], y: curve.y as number[] } : undefined;
-    out.push({ label: str(c.name) ?? `limit_curve_${k}`, versus: str(c.versus) ?? 'm_chi', observable, table, file: str(c.file) });
+    const versus = str(c.versus) ?? 'm_chi';
+    if (c.kind === 'limit_curve') {
+      const observable = str(c.observable);
+      if (!observable) return;
+      const label = str(c.name) ?? `limit_curve_${k}`;
+      const target = str(c.target);
+      const note = target
+        ? `'${label}' was measured on ${target}: its verdicts compare the point's isospin-corrected cross section on ${target} (from sigma_si_p and sigma_si_n), which equals the plotted ${observable} only when f_n = f_p`
+        : undefined;
+      out.push({ label, versus, observable, table: tableOf(c.curve), file: str(c.file), note });
+    } else if (c.kind === 'sd_limit_pair') {
+      const name = str(c.name) ?? `sd_limit_pair_${k}`;
+      const curves = (c.curves ?? {}) as { proton?: unknown; neutron?: unknown };
+      const note = c.combine === 'separate'
+        ? undefined
+        : `'${name}' judges proton and neutron together by the SD sum rule${str(c.target) ? ` on ${str(c.target)}` : ''}: a point below its drawn proton or neutron curve can still be excluded`;
+      out.push({ label: `${name} (proton)`, versus, observable: 'sigma_sd_p_cm2', table: tableOf(curves.proton), file: str(c.proton), note });
+      out.push({ label: `${name} (neutron)`, versus, observable: 'sigma_sd_n_cm2', table: tableOf(curves.neutron), file: str(c.neutron), note });
+    }
   });
   return out;
 }
@@ -73,6 +100,7 @@ export function limitCurveOverlays(
     if (c.versus !== x || c.observable !== y) continue;
     if (c.table) {
       overlays.push({ label: c.label, lines: [c.table.x.map((xv, i) => ({ x: xv, y: c.table?.y[i] as number }))], dash: null });
+      if (c.note) notes.push(c.note);
       continue;
     }
     if (!c.file) continue;
@@ -89,6 +117,7 @@ export function limitCurveOverlays(
     }
     const curve = parsed.curve;
     overlays.push({ label: c.label, lines: [curve.x.map((xv, i) => ({ x: xv, y: curve.y[i] as number }))], dash: null });
+    if (c.note) notes.push(c.note);
   }
   return { overlays, notes };
 }

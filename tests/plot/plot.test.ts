@@ -273,6 +273,40 @@ describe('scatter planes', () => {
   });
 });
 
+describe('curves whose verdict is not "below the line passes"', () => {
+  it('draws an sd_limit_pair as its proton and neutron curves, with notes for the sum rule and a target-element SI curve', () => {
+    const file = path.join(dir, 'sd-pair.db');
+    // invented curves for the mechanics, not published limits
+    fs.writeFileSync(path.join(dir, 'invented-sd-p.csv'), '# invented SD proton curve\nm_chi [GeV], sigma_sd_p [cm^2]\n10, 1e-40\n1000, 1e-39\n');
+    fs.writeFileSync(path.join(dir, 'invented-sd-n.csv'), '# invented SD neutron curve\nm_chi [GeV], sigma_sd_n [cm^2]\n10, 2e-41\n1000, 2e-40\n');
+    const db = createContractLedger(file, { spec: { constraints: [
+      { kind: 'sd_limit_pair', name: 'invented_sd', proton: 'invented-sd-p.csv', neutron: 'invented-sd-n.csv', outOfRange: 'pass', target: 'Xe' },
+      { kind: 'limit_curve', name: 'invented_on_xe', observable: 'sigma_si_p_cm2', versus: 'm_chi', file: 'invented-limit.csv', outOfRange: 'pass', target: 'Xe' },
+    ] } });
+    insertPoints(db, grid.map((r) => ({ ...r, sigma_sd_p_cm2: 1e-41 * (r.m_chi! / 100), sigma_sd_n_cm2: 3e-41 * (r.m_chi! / 100) })));
+    db.close();
+    const view = LedgerView.open(file);
+    try {
+      const proton = planeImage(view, file, { x: 'm_chi', y: 'sigma_sd_p_cm2' });
+      const pDoc = parseSvgText(proton.svg);
+      expect(pDoc.querySelector('[aria-description="curve invented_sd (proton)"] path')).not.toBeNull();
+      expect(proton.svg).not.toContain('invented_sd (neutron)');
+      expect(proton.notes.join(' ')).toMatch(/'invented_sd' judges proton and neutron together by the SD sum rule on Xe/);
+      const neutron = planeImage(view, file, { x: 'm_chi', y: 'sigma_sd_n_cm2' });
+      expect(parseSvgText(neutron.svg).querySelector('[aria-description="curve invented_sd (neutron)"] path')).not.toBeNull();
+      expect(neutron.svg).not.toContain('invented_sd (proton)');
+      const si = planeImage(view, file, { x: 'm_chi', y: 'sigma_si_p_cm2' });
+      expect(parseSvgText(si.svg).querySelector('[aria-description="curve invented_on_xe"] path')).not.toBeNull();
+      expect(si.notes.join(' ')).toMatch(/'invented_on_xe' was measured on Xe: its verdicts compare the point's isospin-corrected cross section/);
+      expect(si.notes.join(' ')).not.toMatch(/sum rule/);
+      // a plane with no such curve says nothing about them
+      expect(planeImage(view, file, { x: 'm_chi', y: 'omega_h2' }).notes.join(' ')).not.toMatch(/invented_/);
+    } finally {
+      view.close();
+    }
+  });
+});
+
 describe('ledgers judged by the constraints module', () => {
   it('shows the most recently judged set and draws the limit curve it was judged against', () => {
     const file = path.join(dir, 'judged.db');
@@ -298,6 +332,40 @@ describe('ledgers judged by the constraints module', () => {
       const doc = parseSvgText(image.svg);
       expect(doc.querySelectorAll('[aria-description="survivors"] circle')).toHaveLength(summary.survivors);
       expect(doc.querySelector('[aria-description="curve invented_flat"] path')).not.toBeNull();
+    } finally {
+      view.close();
+    }
+  });
+});
+
+describe('judged sd_limit_pair', () => {
+  it('draws both curves from the judged definition, and no sum-rule note for combine "separate"', () => {
+    const file = path.join(dir, 'sd-judged.db');
+    const pCsv = path.join(dir, 'judged-sd-p.csv');
+    const nCsv = path.join(dir, 'judged-sd-n.csv');
+    // invented curves for the mechanics, not published limits
+    fs.writeFileSync(pCsv, '# invented\nm_chi [GeV], sigma_sd_p [cm^2]\n10, 1e-40\n1000, 1e-39\n');
+    fs.writeFileSync(nCsv, '# invented\nm_chi [GeV], sigma_sd_n [cm^2]\n10, 2e-41\n1000, 2e-40\n');
+    createContractLedger(file, { constraints: [] }).close();
+    const db = new Database(file);
+    insertPoints(db, grid.map((r) => ({ ...r, sigma_sd_p_cm2: 1e-41 * (r.m_chi! / 100), sigma_sd_n_cm2: 3e-41 * (r.m_chi! / 100) })));
+    const constraints = constraintsSchema.parse([
+      { kind: 'sd_limit_pair', name: 'invented_pair', proton: pCsv, neutron: nCsv, outOfRange: 'pass', combine: 'separate' },
+    ]);
+    const ctx = { parameters: ['m_chi', 'm_med', 'g_chi', 'g_q'], observables: ['omega_h2', 'sigma_sd_p_cm2', 'sigma_sd_n_cm2'], rhoLocalGeVcm3: 0.3, baseDir: dir };
+    const { compiled, issues } = compileConstraints(constraints, ctx);
+    expect(issues).toEqual([]);
+    judgeScan(db, 1, 'invented_sd', compiled!);
+    db.close();
+    fs.rmSync(pCsv);
+    fs.rmSync(nCsv); // the picture must use the judged definition, not the files
+    const view = LedgerView.open(file);
+    try {
+      for (const [y, side] of [['sigma_sd_p_cm2', 'proton'], ['sigma_sd_n_cm2', 'neutron']] as const) {
+        const image = planeImage(view, file, { x: 'm_chi', y });
+        expect(parseSvgText(image.svg).querySelector(`[aria-description="curve invented_pair (${side})"] path`), y).not.toBeNull();
+        expect(image.notes.join(' ')).not.toMatch(/sum rule|not drawn/);
+      }
     } finally {
       view.close();
     }

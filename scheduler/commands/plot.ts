@@ -1,6 +1,6 @@
 /**
  * `darksieve plot DB --x NAME --y NAME [--color NAME] [--survivors-only] [--set NAME] [--scan ID]
- *  --out FILE.svg|.png`: a picture of one plane of a scan (scheduler/plot/plot-plane.ts).
+ *  [--fix NAME=VALUE ...] --out FILE.svg|.png`: a picture of one plane of a scan (scheduler/plot/plot-plane.ts).
  */
 import type { Command } from 'commander';
 import { InvalidInputError, type Issue } from '../../physics/issue.js';
@@ -21,6 +21,7 @@ interface PlotFlags {
   width?: string;
   height?: string;
   json?: boolean;
+  fix: string[];
 }
 
 /** A whole number from a flag, or an issue naming the flag. */
@@ -57,6 +58,7 @@ export function registerPlot(program: Command): void {
     .option('--color-scale <kind>', `colour scale, ${scales}`, 'auto')
     .option('--width <px>', 'picture width in SVG units (default 720)')
     .option('--height <px>', 'picture height in SVG units (default 540)')
+    .option('--fix <name=value>', 'hold a model parameter at the stored value nearest to value (repeatable), e.g. --fix m_med=1000 --fix mediator=vector: one slice of the scan', (v: string, acc: string[]) => [...acc, v], [] as string[])
     .option('--json', 'print what was written as one JSON object')
     .action((db: string, flags: PlotFlags) => {
       const issues: Issue[] = [];
@@ -65,7 +67,7 @@ export function registerPlot(program: Command): void {
       if (issues.length) throw new InvalidInputError(issues);
       const result = writePlot({
         db, out: flags.out, x: flags.x, y: flags.y, color: flags.color, survivorsOnly: flags.survivorsOnly ?? false,
-        set: flags.set, scan: flags.scan, width, height,
+        set: flags.set, scan: flags.scan, width, height, fix: flags.fix,
         xScale: flags.xScale as ScaleChoice, yScale: flags.yScale as ScaleChoice, colorScale: flags.colorScale as ScaleChoice,
       });
       if (flags.json) process.stdout.write(`${JSON.stringify(result)}\n`);

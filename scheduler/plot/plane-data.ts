@@ -10,6 +10,7 @@
  * never passes that test; a grid scan's axes always do.
  */
 import type { LedgerView } from './ledger-view.js';
+import { NO_SLICE, type Slice } from './slice.js';
 import { quoteId } from '../ledger.js';
 import {
   chooseScale, paddedDomain, toScaleSpace, fromScaleSpace,
@@ -49,6 +50,8 @@ export interface PlaneRequest {
   readonly colorScale: ScaleChoice;
   /** default PLOT_DENSITY */
   readonly density?: PlaneDensity;
+  /** only the points of this slice (plot --fix); default all */
+  readonly slice?: Slice;
 }
 
 export interface AxisInfo {
@@ -137,14 +140,15 @@ function planeStats(view: LedgerView, req: PlaneRequest, parts: SqlParts): Plane
             MIN(CASE WHEN ${c} > 0 THEN ${c} END) AS ${k}MinPositive, TOTAL(${c} <= 0) AS ${k}NonPositive`;
   };
   const from = req.survivorsOnly ? parts.from : 'points p';
-  const params = req.survivorsOnly ? [...parts.params, req.scanId] : [req.scanId];
+  const slice = req.slice ?? NO_SLICE;
+  const params = [...(req.survivorsOnly ? parts.params : []), req.scanId, ...slice.params];
   const row = view.db.prepare(
     `SELECT COUNT(*) AS total, ${stat('x')}, ${stat('y')}, ${stat('c')},
             TOTAL(${cols.x} IS NOT NULL AND ${cols.y} IS NOT NULL) AS bothAny,
             TOTAL(${cols.x} > 0 AND ${cols.y} IS NOT NULL) AS bothXPos,
             TOTAL(${cols.x} IS NOT NULL AND ${cols.y} > 0) AS bothYPos,
             TOTAL(${cols.x} > 0 AND ${cols.y} > 0) AS bothPos
-       FROM ${from} WHERE p.scan_id = ?${req.survivorsOnly ? ` AND ${parts.survive} = 1` : ''}`,
+       FROM ${from} WHERE p.scan_id = ?${slice.sql('p')}${req.survivorsOnly ? ` AND ${parts.survive} = 1` : ''}`,
   ).get(...params) as Record<string, number | null>;
   const pick = (k: string): ColumnStats => ({
     count: row[`${k}Count`] ?? 0, min: row[`${k}Min`] ?? null, max: row[`${k}Max`] ?? null,
@@ -193,14 +197,16 @@ export function readPlane(view: LedgerView, req: PlaneRequest): PlaneData {
 
   const xc = `p.${quoteId(req.x)}`;
   const yc = `p.${quoteId(req.y)}`;
-  const conds = [`p.scan_id = ?`, `${xc} IS NOT NULL`, `${yc} IS NOT NULL`];
+  const slice = req.slice ?? NO_SLICE;
+  // the slice's placeholders follow scan_id's: params below list them in that order
+  const conds = [`p.scan_id = ?${slice.sql('p')}`, `${xc} IS NOT NULL`, `${yc} IS NOT NULL`];
   if (xType === 'log') conds.push(`${xc} > 0`);
   if (yType === 'log') conds.push(`${yc} > 0`);
   // the grid is recognised on all points, so that --survivors-only keeps the grid's layout
   const gridWhere = conds.join(' AND ');
   if (req.survivorsOnly) conds.push(`${parts.survive} = 1`);
   const where = conds.join(' AND ');
-  const params = [...parts.params, req.scanId];
+  const params = [...parts.params, req.scanId, ...slice.params];
   const base = { x, y, color, judged: req.constraintSet !== null, survivorsOnly: req.survivorsOnly, drawnPoints: drawn, omittedPoints: stats.total - drawn };
 
   const cExpr = colorExpr(req.color, color?.type);

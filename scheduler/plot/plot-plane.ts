@@ -14,6 +14,7 @@ import type { ScaleChoice } from './axis-scale.js';
 import { renderPlane, type Overlay } from './render-plane.js';
 import { relicContour } from './relic-contour.js';
 import { limitCurveOverlays } from './limit-curves.js';
+import { NO_SLICE, describeSlice, resolveSlice } from './slice.js';
 import { svgToPng } from './rasterize.js';
 
 export const SCALE_CHOICES: readonly ScaleChoice[] = ['auto', 'log', 'linear'];
@@ -34,6 +35,8 @@ export interface PlaneOptions {
   readonly height?: number;
   /** default PLOT_DENSITY (plane-data.ts); the report draws coarser to stay small */
   readonly density?: PlaneDensity;
+  /** `name=value` assignments holding parameters at a stored value (slice.ts) */
+  readonly fix?: readonly string[];
 }
 
 export interface PlotRequest extends PlaneOptions {
@@ -84,15 +87,24 @@ export function planeImage(view: LedgerView, ledgerFile: string, opts: PlaneOpti
   if (opts.survivorsOnly && constraintSet === null && issues.length === 0) {
     issues.push({ code: 'not_judged', path: '--survivors-only', message: `scan ${scanId} has no verdicts, so no point is known to survive` });
   }
+  let slice = NO_SLICE;
+  try {
+    slice = resolveSlice(view, scanId, opts.fix ?? [], [opts.x, opts.y]);
+  } catch (err) {
+    if (!(err instanceof InvalidInputError)) throw err;
+    issues.push(...err.issues);
+  }
   if (issues.length) throw new InvalidInputError(issues);
 
   const data = readPlane(view, {
     scanId, x: opts.x, y: opts.y, color: opts.color, survivorsOnly: opts.survivorsOnly ?? false, constraintSet,
-    xScale: opts.xScale ?? 'auto', yScale: opts.yScale ?? 'auto', colorScale: opts.colorScale ?? 'auto', density: opts.density,
+    xScale: opts.xScale ?? 'auto', yScale: opts.yScale ?? 'auto', colorScale: opts.colorScale ?? 'auto', density: opts.density, slice,
   });
   const overlays: Overlay[] = [];
   const extraNotes: string[] = [];
-  const relic = relicContour(view, scanId, data);
+  const sliceNote = describeSlice(slice);
+  if (sliceNote) extraNotes.push(sliceNote);
+  const relic = relicContour(view, scanId, data, slice);
   overlays.push(...relic.overlays);
   if (relic.note) extraNotes.push(relic.note);
   const limits = limitCurveOverlays(view.db, scanId, constraintSet, scan.spec_json, opts.x, opts.y, ledgerFile);

@@ -11,6 +11,7 @@
  */
 import { BASE } from '../../physics/constants.js';
 import { PARAMETER_NAMES } from '../../physics/model.js';
+import { NO_SLICE, type Slice } from './slice.js';
 import type { LedgerView } from './ledger-view.js';
 import { quoteId } from '../ledger.js';
 import type { PlaneData } from './plane-data.js';
@@ -36,14 +37,14 @@ type SliceValue = string | number | null;
 
 /** The grid's relic line(s) for one slice (`where` restricts the points to it). */
 function sliceLines(
-  view: LedgerView, scanId: number, data: PlaneData, where: string, params: SliceValue[],
+  view: LedgerView, scanId: number, data: PlaneData, where: string, params: SliceValue[], fixed: Slice,
 ): { lines: { x: number; y: number }[][]; perCell: number } {
   const xc = quoteId(data.x.column);
   const yc = quoteId(data.y.column);
   const rows = view.db.prepare(
     `SELECT ${xc} AS x, ${yc} AS y, COUNT(*) AS n, MIN(${quoteId(RELIC_COLUMN)}) AS o
-       FROM points WHERE scan_id = ? AND ${xc} IS NOT NULL AND ${yc} IS NOT NULL${where} GROUP BY ${xc}, ${yc}`,
-  ).all(scanId, ...params) as { x: number; y: number; n: number; o: number | null }[];
+       FROM points WHERE scan_id = ?${fixed.sql('')} AND ${xc} IS NOT NULL AND ${yc} IS NOT NULL${where} GROUP BY ${xc}, ${yc}`,
+  ).all(scanId, ...fixed.params, ...params) as { x: number; y: number; n: number; o: number | null }[];
   const perCell = rows.reduce((m, r) => Math.max(m, r.n), 0);
   const xi = new Map(data.gridX.map((v, i) => [v, i]));
   const yi = new Map(data.gridY.map((v, j) => [v, j]));
@@ -61,39 +62,39 @@ function sliceLines(
   return { lines, perCell };
 }
 
-/** The other parameter columns that take more than one value in the scan. */
-function varyingParameters(view: LedgerView, scanId: number, data: PlaneData): string[] {
+/** The other parameter columns that take more than one value in the scan (within the fixed slice). */
+function varyingParameters(view: LedgerView, scanId: number, data: PlaneData, fixed: Slice): string[] {
   const columns = new Set(view.pointColumns().map((c) => c.name));
   return PARAMETER_NAMES.filter((p) => columns.has(p) && p !== data.x.column && p !== data.y.column).filter((p) => {
-    const n = view.db.prepare(`SELECT COUNT(*) AS n FROM (SELECT DISTINCT ${quoteId(p)} FROM points WHERE scan_id = ? LIMIT 2)`).get(scanId) as { n: number };
+    const n = view.db.prepare(`SELECT COUNT(*) AS n FROM (SELECT DISTINCT ${quoteId(p)} FROM points WHERE scan_id = ?${fixed.sql('')} LIMIT 2)`).get(scanId, ...fixed.params) as { n: number };
     return n.n > 1;
   });
 }
 
 const sliceText = (v: SliceValue): string => (v === null ? 'default' : typeof v === 'number' ? formatLinear(v) : v);
 
-export function relicContour(view: LedgerView, scanId: number, data: PlaneData): RelicContourResult {
+export function relicContour(view: LedgerView, scanId: number, data: PlaneData, fixed: Slice = NO_SLICE): RelicContourResult {
   const none = { overlays: [], note: null };
   if (data.mode !== 'grid') return none;
   if (data.x.column === RELIC_COLUMN || data.y.column === RELIC_COLUMN) return none;
   if (!view.numericColumns(scanId).includes(RELIC_COLUMN)) return none;
   if (data.pointsPerCell === 1) {
-    const { lines } = sliceLines(view, scanId, data, '', []);
+    const { lines } = sliceLines(view, scanId, data, '', [], fixed);
     if (lines.length === 0) return { overlays: [], note: 'Ωh² does not cross 0.120 in this plane' };
     return { overlays: [{ label: RELIC_LABEL, lines, dash: SLICE_DASHES[0] }], note: null };
   }
-  const notDrawn = { overlays: [], note: `relic line not drawn: ${data.pointsPerCell} points share each cell (other axes vary)` };
+  const notDrawn = { overlays: [], note: `relic line not drawn: ${data.pointsPerCell} points share each cell (other axes vary; --fix name=value picks one slice)` };
   if (data.pointsPerCell > MAX_RELIC_SLICES) return notDrawn;
-  const varying = varyingParameters(view, scanId, data);
+  const varying = varyingParameters(view, scanId, data, fixed);
   if (varying.length === 0) return notDrawn;
   const cols = varying.map(quoteId).join(', ');
-  const slices = view.db.prepare(`SELECT DISTINCT ${cols} FROM points WHERE scan_id = ? LIMIT ${MAX_RELIC_SLICES + 1}`)
-    .raw().all(scanId) as SliceValue[][];
+  const slices = view.db.prepare(`SELECT DISTINCT ${cols} FROM points WHERE scan_id = ?${fixed.sql('')} LIMIT ${MAX_RELIC_SLICES + 1}`)
+    .raw().all(scanId, ...fixed.params) as SliceValue[][];
   if (slices.length !== data.pointsPerCell) return notDrawn;
   const overlays: Overlay[] = [];
   slices.forEach((slice, k) => {
     const where = varying.map((c) => ` AND ${quoteId(c)} IS ?`).join('');
-    const { lines, perCell } = sliceLines(view, scanId, data, where, slice);
+    const { lines, perCell } = sliceLines(view, scanId, data, where, slice, fixed);
     if (perCell !== 1 || lines.length === 0) return;
     const label = `${RELIC_LABEL} (${varying.map((c, i) => `${c} = ${sliceText(slice[i] ?? null)}`).join(', ')})`;
     const tag = varying.length === 1 ? `${RELIC_LABEL}: ${sliceText(slice[0] ?? null)}` : label;

@@ -56,20 +56,21 @@ describe('darksieve plot and report on the command line', () => {
   });
   afterAll(() => fs.rmSync(dir, { recursive: true, force: true }));
 
-  // each CLI start transpiles the whole command tree (seconds on a loaded machine): two starts only;
+  // each CLI start costs a fraction of a second (more on a loaded machine): two starts only;
   // the other bad inputs are covered through writePlot / writeReport in plot.test.ts and report.test.ts
   it('exits 2 naming the field on bad input and writes nothing', () => {
     const out = path.join(dir, 'bad.svg');
-    const r = cli('plot', db, '--x', 'm_chi', '--y', 'sigma', '--color', 'omega_h2', '--out', out);
+    const r = cli('plot', db, '--x', 'm_chi', '--y', 'sigma', '--color', 'omega_h2', '--fix', 'm_med=abc', '--out', out);
     expect(r.status, r.stderr).toBe(2);
     expect(r.stderr).toContain('--y');
+    expect(r.stderr).toContain('--fix');
     expect(r.stderr).toContain('sigma_si_p_cm2');
     expect(fs.readdirSync(dir).filter((f) => f.startsWith('bad'))).toEqual([]);
   });
 
   it('writes a PNG and says what it wrote', () => {
     const out = path.join(dir, 'ok.png');
-    const r = cli('plot', db, '--x', 'm_chi', '--y', 'sigma_si_p_cm2', '--color', 'omega_h2', '--out', out, '--json');
+    const r = cli('plot', db, '--x', 'm_chi', '--y', 'sigma_si_p_cm2', '--color', 'omega_h2', '--fix', 'm_med=480', '--out', out, '--json');
     expect(r.status, r.stderr).toBe(0);
     expect(JSON.parse(r.stdout)).toMatchObject({ file: out, format: 'png', mode: 'scatter', drawnPoints: 40 });
     expect(fs.readFileSync(out).readUInt32BE(16)).toBe(1440);

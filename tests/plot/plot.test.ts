@@ -11,6 +11,7 @@ import { createContractLedger, insertPoints, insertVerdicts, type Row } from './
 import { writePlot, planeImage } from '../../scheduler/plot/plot-plane.js';
 import { LedgerView } from '../../scheduler/plot/ledger-view.js';
 import { relicContour } from '../../scheduler/plot/relic-contour.js';
+import { resolveSlice } from '../../scheduler/plot/slice.js';
 import { SCATTER_MAX_POINTS } from '../../scheduler/plot/plane-data.js';
 import { InvalidInputError } from '../../physics/issue.js';
 import { constraintsSchema } from '../../scheduler/constraints/schema.js';
@@ -211,6 +212,55 @@ describe('grid planes', () => {
       expect(image.data).toMatchObject({ mode: 'grid', pointsPerCell: 5 });
       expect(image.notes.join(' ')).toContain('relic line not drawn: 5 points share each cell');
       expect(image.svg).not.toContain('curve Ωh²');
+    } finally {
+      view.close();
+    }
+  });
+
+  it('--fix picks one slice: the nearest stored value, the relic line of that slice, and its note', () => {
+    const file = path.join(dir, 'fix.db');
+    const db = createContractLedger(file);
+    // five g_chi slices, the field scaled by (g_chi / 0.6)^-4: the slice at 0.6 crosses where the plain grid does
+    const slices = [0.2, 0.4, 0.6, 0.8, 1];
+    insertPoints(db, slices.flatMap((g) => grid.map((r) => ({ ...r, g_chi: g, mediator: g === 1 ? 'scalar' : 'vector', omega_h2: (r.omega_h2 as number) * (g / 0.6) ** -4 }))));
+    db.close();
+    const view = LedgerView.open(file);
+    try {
+      const image = planeImage(view, file, { x: 'm_chi', y: 'm_med', fix: ['g_chi=0.63'] });
+      expect(image.data).toMatchObject({ mode: 'grid', pointsPerCell: 1, drawnPoints: grid.length });
+      expect(image.notes.join(' ')).toContain('slice: g_chi = 0.6 (stored value nearest 0.63)');
+      const relic = relicContour(view, 1, image.data, resolveSlice(view, 1, ['g_chi=0.63'], ['m_chi', 'm_med']));
+      expect(relic.overlays).toHaveLength(1);
+      for (const p of relic.overlays[0]!.lines.flat()) {
+        const expected = 300 * Math.sqrt(p.x / 100);
+        expect(Math.abs(p.y / expected - 1), `m_chi=${p.x}`).toBeLessThan(1e-9);
+      }
+      expect(parseSvgText(image.svg).querySelector('[aria-description="curve Ωh² = 0.120"] path')).not.toBeNull();
+      // without --fix the five slices are mixed and the note points to --fix
+      expect(planeImage(view, file, { x: 'm_chi', y: 'm_med' }).notes.join(' ')).toMatch(/relic line not drawn: 5 points share each cell.*--fix/);
+      // a text parameter: the one slice with mediator = scalar is g_chi = 1
+      const scalar = planeImage(view, file, { x: 'm_chi', y: 'm_med', fix: ['mediator=scalar'] });
+      expect(scalar.data).toMatchObject({ pointsPerCell: 1, drawnPoints: grid.length });
+      expect(scalar.notes.join(' ')).toContain('slice: mediator = scalar');
+    } finally {
+      view.close();
+    }
+  });
+
+  it('--fix refuses an axis, an unknown or repeated parameter, a non-number and a value the scan does not hold, all at once', () => {
+    const view = LedgerView.open(gridDb());
+    try {
+      let caught: unknown;
+      try {
+        planeImage(view, gridDb(), { x: 'm_chi', y: 'm_med', fix: ['m_chi=100', 'colour=red', 'g_q=abc', 'mediator=tensor', 'g_chi=1', 'g_chi=2', 'nothing'] });
+      } catch (err) {
+        caught = err;
+      }
+      expect(caught).toBeInstanceOf(InvalidInputError);
+      const issues = (caught as InvalidInputError).issues;
+      expect(issues.every((i) => i.path === '--fix')).toBe(true);
+      expect(issues.map((i) => i.code)).toEqual(['fixed_axis', 'bad_assignment', 'type', 'not_in_scan', 'repeated', 'bad_assignment']);
+      expect(issues.find((i) => i.code === 'not_in_scan')?.allowed).toBe('vector');
     } finally {
       view.close();
     }

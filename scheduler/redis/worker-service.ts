@@ -62,6 +62,11 @@ export interface WorkerServiceOptions {
   readonly heartbeatMs?: number;
   /** physics module for tests of the mechanics; default physics/evaluate.ts */
   readonly physicsModule?: string;
+  /**
+   * serve scans announced by a scheduler running other code (with a warning); default false: such a
+   * scan is refused, because its results are bit-identical to the scheduler's own only with the same code
+   */
+  readonly allowOtherCode?: boolean;
   readonly log?: (line: string) => void;
 }
 
@@ -230,7 +235,7 @@ export class WorkerService {
 
   constructor(options: WorkerServiceOptions) {
     if (!Number.isInteger(options.concurrency) || options.concurrency < 1) throw new RangeError(`concurrency must be a positive integer, got ${options.concurrency}`);
-    this.o = { lockDurationMs: 15_000, stalledIntervalMs: 10_000, prefetch: options.concurrency, maxStalledCount: 3, pollMs: 1000, heartbeatMs: 2000, ...options };
+    this.o = { lockDurationMs: 15_000, stalledIntervalMs: 10_000, prefetch: options.concurrency, maxStalledCount: 3, pollMs: 1000, heartbeatMs: 2000, allowOtherCode: false, ...options };
     this.log = options.log ?? ((line) => process.stderr.write(`${line}\n`));
     this.connection = bullConnection(redisOptionsFromUrl(options.url));
     this.id = `${hostname()}-${process.pid}-${randomBytes(3).toString('hex')}`;
@@ -332,8 +337,15 @@ export class WorkerService {
   }
 
   private async serve(a: ScanAnnouncement): Promise<void> {
-    if (a.codeVersion !== this.o.codeVersion)
-      this.log(`warning: scan ${a.queue} was started by code ${a.codeVersion}, this worker runs ${this.o.codeVersion}; results are bit-identical only when the physics code is the same`);
+    if (a.codeVersion !== this.o.codeVersion) {
+      if (!this.o.allowOtherCode) {
+        const message = `it was started by code ${a.codeVersion} and this worker runs ${this.o.codeVersion}; results are bit-identical only with the same code (run this worker from the same commit, or with --allow-other-code to serve it anyway)`;
+        this.refused.set(a.queue, message);
+        this.log(`not serving scan ${a.queue}: ${message}`);
+        return;
+      }
+      this.log(`warning: scan ${a.queue} was started by code ${a.codeVersion}, this worker runs ${this.o.codeVersion}; serving it as asked (--allow-other-code), although results are bit-identical only with the same code`);
+    }
     try {
       const server = await ScanServer.start(a, {
         workerId: this.id, o: this.o, connection: this.connection, client: this.client!, clusterThreads: () => Math.max(this.clusterThreads, this.o.concurrency),

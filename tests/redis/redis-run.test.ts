@@ -101,6 +101,34 @@ describe.skipIf(!available)('scans through Redis (BullMQ)', () => {
     }
   });
 
+  it('a worker on other code refuses the scan unless told otherwise; the scan then runs on one that serves it', async () => {
+    const p = prefix();
+    const linesOther: string[] = [];
+    const linesAllowed: string[] = [];
+    const other = new WorkerService({ url: TEST_REDIS_URL, prefix: p, concurrency: 1, codeVersion: 'other', physicsModule: FAKE_PHYSICS, pollMs: 200, log: (l) => linesOther.push(l) });
+    await other.start();
+    const db = path.join(tmp.dir, 'other-code.db');
+    const t = transport(p);
+    let allowed: WorkerService | null = null;
+    try {
+      const scan = run(db, t);
+      await waitFor('the other-code worker to refuse the scan', () => linesOther.some((l) => l.startsWith('not serving scan')), 5000);
+      expect(linesOther.join('\n')).toMatch(/started by code test and this worker runs other; results are bit-identical only with the same code/);
+      expect(other.serving).toEqual([]);
+      allowed = new WorkerService({ url: TEST_REDIS_URL, prefix: p, concurrency: 1, codeVersion: 'other', allowOtherCode: true, physicsModule: FAKE_PHYSICS, pollMs: 200, log: (l) => linesAllowed.push(l) });
+      await allowed.start();
+      const s = await scan;
+      expect(s.status).toBe('done');
+      expect(linesAllowed.join('\n')).toMatch(/warning: scan .* was started by code test, this worker runs other; serving it as asked/);
+      // every chunk was evaluated by the worker that was allowed to serve it
+      expect(other.serving).toEqual([]);
+      expect(pointRows(db)).toEqual(reference);
+    } finally {
+      await other.close();
+      await allowed?.close();
+    }
+  });
+
   it('a worker takes up a newly announced scan at once, without waiting for its discovery poll', async () => {
     const p = prefix();
     // the poll runs once at start (no scan yet) and then not for 10 minutes: only the announcement

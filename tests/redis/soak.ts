@@ -49,7 +49,7 @@ async function workerTrial(k: number): Promise<string | null> {
   const db = path.join(tmp.dir, `w${k}.db`);
   const workers = [startWorker(TEST_REDIS_URL, p, { msPerPoint: 40 }), startWorker(TEST_REDIS_URL, p, { msPerPoint: 40 })];
   try {
-    const t = new RedisTransport({ url: TEST_REDIS_URL, prefix: p, ledgerTag: 'soak', codeVersion: 'soak', pollMs: 200, log: silent });
+    const t = new RedisTransport({ url: TEST_REDIS_URL, prefix: p, ledgerTag: 'soak', codeVersion: 'test', pollMs: 200, log: silent });
     const scan = runScan({ specPath: specFile, dbPath: db, physicsModule: FAKE_PHYSICS, quiet: true, log: silent, chunkSize: CHUNK, transport: t });
     const queue = await waitFor('the work queue', () => t.workQueue !== '' && new Queue(t.workQueue, { connection: bullConnection(redisOptionsFromUrl(TEST_REDIS_URL)), prefix: p }));
     const victimJob = await waitFor('a worker holding a chunk', async () => (await queue.getJobs(['active']))[0], 120_000);

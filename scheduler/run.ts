@@ -90,11 +90,12 @@ export const MAX_CHUNK = 20_000;
 export const CALIBRATION_MS = 200;
 
 /** Package version plus the git commit of the sources, when they are in a git work tree. */
-export function codeVersion(): string {
-  const root = new URL('..', import.meta.url);
+export function codeVersion(root: URL = new URL('..', import.meta.url)): string {
   const pkg = JSON.parse(readFileSync(new URL('package.json', root), 'utf8')) as { version: string };
   try {
-    const commit = execFileSync('git', ['rev-parse', '--short=12', 'HEAD'], { cwd: root, stdio: ['ignore', 'pipe', 'ignore'], timeout: 3000 })
+    // safe.directory: a checkout mounted into a container belongs to another user, and git would
+    // refuse to read it; workers there must report the same version as the scheduler on the host
+    const commit = execFileSync('git', ['-c', 'safe.directory=*', 'rev-parse', '--short=12', 'HEAD'], { cwd: root, stdio: ['ignore', 'pipe', 'ignore'], timeout: 3000 })
       .toString()
       .trim();
     return `${pkg.version}+${commit}`;

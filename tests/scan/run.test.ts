@@ -8,7 +8,11 @@ import path from 'node:path';
 import Database from 'better-sqlite3';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { InvalidInputError } from '../../physics/issue.js';
-import { describeRun, resumeCommandFor, runScan, type RunOptions } from '../../scheduler/run.js';
+import { codeVersion, describeRun, resumeCommandFor, runScan, type RunOptions } from '../../scheduler/run.js';
+import { execFileSync } from 'node:child_process';
+import { mkdtempSync, rmSync } from 'node:fs';
+import { tmpdir } from 'node:os';
+import { pathToFileURL } from 'node:url';
 import { mergeCalibrations } from '../../scheduler/chunk.js';
 import { redactRedisUrl } from '../../scheduler/redis/connection.js';
 import { FAKE_PHYSICS, pointRows, query, tempDir, writeSpec } from './helpers.js';
@@ -222,4 +226,26 @@ describe('calibration shared by the threads', () => {
       await pool.close();
     }
   });
+});
+
+describe('the code version stored with a scan and compared by Redis workers', () => {
+  // a checkout mounted into a container belongs to another user; git then refuses to read it unless
+  // told it is safe, and the worker would report a bare package version unlike its scheduler's
+  const root = typeof process.getuid === 'function' && process.getuid() === 0;
+  it.skipIf(!root)('reads the commit of a checkout owned by another user (needs root for chown)', () => {
+    const dir = mkdtempSync(path.join(tmpdir(), 'darksieve-version-'));
+    try {
+      writeFileSync(path.join(dir, 'package.json'), JSON.stringify({ version: '9.8.7' }));
+      const git = (...args: string[]) => execFileSync('git', ['-c', 'user.email=t@example.invalid', '-c', 'user.name=t', ...args], { cwd: dir, stdio: ['ignore', 'pipe', 'ignore'] }).toString().trim();
+      git('init', '-q');
+      git('add', 'package.json');
+      git('commit', '-q', '-m', 'fixture');
+      const commit = git('rev-parse', '--short=12', 'HEAD');
+      execFileSync('chown', ['-R', '4321:4321', dir]);
+      expect(codeVersion(pathToFileURL(`${dir}/`))).toBe(`9.8.7+${commit}`);
+    } finally {
+      rmSync(dir, { recursive: true, force: true });
+    }
+  });
+  if (!root) console.log('code-version ownership test skipped: it needs root to chown a fixture checkout');
 });

@@ -15,7 +15,7 @@ import { mkdtempSync, rmSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import path from 'node:path';
 import Database from 'better-sqlite3';
-import { runScan } from '../../scheduler/run.js';
+import { codeVersion, runScan } from '../../scheduler/run.js';
 import { openClient, probeRedis, redisOptionsFromUrl } from '../../scheduler/redis/connection.js';
 import { ledgerTag, liveWorkers } from '../../scheduler/redis/keys.js';
 import { RedisTransport } from '../../scheduler/redis/transport.js';
@@ -118,7 +118,7 @@ export async function benchRedis(): Promise<{ lines: string[] }> {
           embedded.push(se.pointsPerS);
           idle.embedded.push(se.idleShare);
           const r = path.join(dir, `run-${++run}.db`);
-          const transport = new RedisTransport({ url, prefix, ledgerTag: ledgerTag(r), codeVersion: 'bench', ...quiet });
+          const transport = new RedisTransport({ url, prefix, ledgerTag: ledgerTag(r), codeVersion: codeVersion(), ...quiet }); // the workers' own: they refuse scans of other code
           await runScan({ specPath, dbPath: r, chunkSize: CHUNK, transport, ...quiet });
           const sr = steadyRate(r, n);
           redis.push(sr.pointsPerS);

@@ -97,6 +97,11 @@ export function quoteId(name: string): string {
 }
 const now = (): string => new Date().toISOString();
 
+/** Rows per INSERT statement when writing a chunk (chunkWriter). */
+const INSERT_BATCH_ROWS = 32;
+/** SQLite's limit on parameters per statement (SQLITE_MAX_VARIABLE_NUMBER, 32766 since SQLite 3.32). */
+const SQLITE_MAX_VARIABLES = 32766;
+
 interface ScanRow {
   id: number; name: string; spec_json: string; spec_hash: string; code_version: string; created_at: string; updated_at: string;
   status: ScanStatus; constants_edition: string; knobs_json: string; observables_json: string;
@@ -240,9 +245,16 @@ export class Ledger extends LedgerReader {
   chunkWriter(scanId: number, layout: ColumnLayout): (result: ChunkResult) => void {
     this.ensurePointColumns(layout);
     const width = layout.names.length;
-    const insert = this.db.prepare(
-      `INSERT OR IGNORE INTO points (scan_id, point_id, ${layout.names.map(quoteId).join(', ')}) VALUES (?, ?${', ?'.repeat(width)})`,
-    );
+    // rows go in `perStatement` at a time (one statement with that many value tuples): each statement
+    // call has a fixed cost, and batching cut the ingest CPU per row by about a fifth (`npm run bench --
+    // ingest`, 22 columns, medians of 6 alternating runs: 124k -> 157k rows per CPU second, 106k ->
+    // 128k rows/s wall); OR IGNORE still applies row by row
+    const into = `INSERT OR IGNORE INTO points (scan_id, point_id, ${layout.names.map(quoteId).join(', ')}) VALUES `;
+    const tuple = `(?, ?${', ?'.repeat(width)})`;
+    const insert = this.db.prepare(into + tuple);
+    const perStatement = Math.max(1, Math.min(INSERT_BATCH_ROWS, Math.floor(SQLITE_MAX_VARIABLES / (width + 2))));
+    const insertBatch = this.db.prepare(into + Array<string>(perStatement).fill(tuple).join(', '));
+    const batch: unknown[] = new Array((width + 2) * perStatement);
     const done = this.db.prepare(
       `INSERT INTO chunks (scan_id, chunk, first_id, n, status, attempts, finished_at, error, eval_ms)
        VALUES (?, ?, ?, ?, 'done', 1, ?, NULL, ?)
@@ -250,15 +262,23 @@ export class Ledger extends LedgerReader {
          finished_at = excluded.finished_at, error = NULL, eval_ms = excluded.eval_ms`,
     );
     const row: unknown[] = new Array(width + 2);
-    row[0] = scanId;
     return this.db.transaction((result: ChunkResult) => {
       if (result.columns.length !== width) throw new Error(`chunk ${result.chunk}: ${result.columns.length} columns, expected ${width}`);
-      for (let i = 0; i < result.n; i++) {
-        row[1] = result.firstId + i;
+      const fill = (out: unknown[], at: number, i: number): void => {
+        out[at] = scanId;
+        out[at + 1] = result.firstId + i;
         for (let c = 0; c < width; c++) {
           const v = result.columns[c]![i];
-          row[c + 2] = typeof v === 'number' && Number.isNaN(v) ? null : v;
+          out[at + c + 2] = typeof v === 'number' && Number.isNaN(v) ? null : v;
         }
+      };
+      let i = 0;
+      for (; i + perStatement <= result.n; i += perStatement) {
+        for (let j = 0; j < perStatement; j++) fill(batch, j * (width + 2), i + j);
+        insertBatch.run(batch);
+      }
+      for (; i < result.n; i++) {
+        fill(row, 0, i);
         insert.run(row);
       }
       done.run(scanId, result.chunk, result.firstId, result.n, now(), result.evalMs);

@@ -16,6 +16,7 @@ const PARTS: readonly Part[] = [
   { name: 'point', run: async () => (await import('./point-bench.js')).benchPoint() },
   { name: 'startup', run: async () => (await import('./startup-bench.js')).benchStartup() },
   { name: 'scan', run: async () => (await import('./scan-bench.js')).benchScan() },
+  { name: 'ingest', run: async () => (await import('./scan-bench.js')).benchIngest() },
   { name: 'constraints', run: async () => (await import('./constraints-bench.js')).benchConstraints() },
   { name: 'redis', run: async () => (await import('./redis-bench.js')).benchRedis() },
   { name: 'plot', run: async () => (await import('./plot-bench.js')).benchPlot() },

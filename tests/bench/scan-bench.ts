@@ -225,6 +225,40 @@ export function buildScanLedger(file: string, points = 1_000_000): { scanId: num
   }
 }
 
+/** Ledger ingest: rows/s of the scheduler's chunk writer over 200 synthetic 1000-row chunks of the bench scan's layout. */
+function ingestLine(dir: string): string {
+  const spec = parseSpec(BENCH_SPEC).spec!;
+  const observables = numericObservableNames(['xe_bench'], ['gc']);
+  const ledger = Ledger.open(path.join(dir, 'ingest.db'));
+  try {
+    const json = resolvedSpecJson(spec);
+    const scan = ledger.createScan({
+      name: 'ingest', specJson: json, specHash: specHash(json), codeVersion: 'bench', constantsEdition: CONSTANTS_EDITION,
+      knobsJson: '{}', observables, nPoints: 200_000, chunkSize: 1000, nChunks: 200,
+    });
+    const write = ledger.chunkWriter(scan.id, columnLayout(observables));
+    const chunks = Array.from({ length: 200 }, (_, c) => syntheticChunk(c, c * 1000, 1000, observables));
+    const c0 = process.cpuUsage();
+    const t0 = performance.now();
+    for (const c of chunks) write(c);
+    const rate = 200_000 / ((performance.now() - t0) / 1000);
+    const cpuRate = 200_000 / cpuSeconds(c0);
+    return `ledger ingest: ${rate.toFixed(0)} rows/s wall, ${cpuRate.toFixed(0)} rows per CPU second (${columnLayout(observables).names.length + 2} columns, 1000-row chunks, WAL/NORMAL; target >= 200000)`;
+  } finally {
+    ledger.close();
+  }
+}
+
+/** `npm run bench -- ingest`: the ledger ingest line alone, three times. */
+export async function benchIngest(): Promise<{ lines: string[] }> {
+  const dir = mkdtempSync(path.join(tmpdir(), 'darksieve-bench-ingest-'));
+  try {
+    return { lines: [0, 1, 2].map((k) => ingestLine(mkdtempSync(path.join(dir, `r${k}-`)))) };
+  } finally {
+    rmSync(dir, { recursive: true, force: true });
+  }
+}
+
 export async function benchScan(): Promise<{ lines: string[] }> {
   const lines: string[] = [];
   const dir = mkdtempSync(path.join(tmpdir(), 'darksieve-bench-scan-'));
@@ -270,24 +304,7 @@ export async function benchScan(): Promise<{ lines: string[] }> {
     );
     const observables = numericObservableNames(['xe_bench'], ['gc']);
     lines.push(...(await benchThreads(resolvedSpecJson(spec), observables)));
-    const ledger = Ledger.open(path.join(dir, 'ingest.db'));
-    try {
-      const json = resolvedSpecJson(spec);
-      const scan = ledger.createScan({
-        name: 'ingest', specJson: json, specHash: specHash(json), codeVersion: 'bench', constantsEdition: CONSTANTS_EDITION,
-        knobsJson: '{}', observables, nPoints: 200_000, chunkSize: 1000, nChunks: 200,
-      });
-      const write = ledger.chunkWriter(scan.id, columnLayout(observables));
-      const chunks = Array.from({ length: 200 }, (_, c) => syntheticChunk(c, c * 1000, 1000, observables));
-      const c0 = process.cpuUsage();
-      const t0 = performance.now();
-      for (const c of chunks) write(c);
-      const rate = 200_000 / ((performance.now() - t0) / 1000);
-      const cpuRate = 200_000 / cpuSeconds(c0);
-      lines.push(`ledger ingest: ${rate.toFixed(0)} rows/s wall, ${cpuRate.toFixed(0)} rows per CPU second (${columnLayout(observables).names.length + 2} columns, 1000-row chunks, WAL/NORMAL; target >= 200000)`);
-    } finally {
-      ledger.close();
-    }
+    lines.push(ingestLine(dir));
     const big = buildScanLedger(path.join(dir, 'big.db'));
     lines.push(`buildScanLedger: 1e6 points in ${big.seconds.toFixed(1)} s (${(1e6 / big.seconds).toFixed(0)} rows/s incl. parameters from the plan)`);
   } finally {

@@ -4,6 +4,8 @@
  *    scheduler, no ledger), against `run` end to end on the embedded pool with as many workers over
  *    the same points (target: overhead <= 5 %), alternating, medians of ROUNDS; both sides pay cold
  *    compiled code and caches, and with 2 threads on a 2-core machine both share the same contention;
+ *    again on a 4x longer scan (LONG_ROUNDS), to tell the fixed start-up from a cost per point
+ *    (medians of an even count are the larger middle value);
  *  - `darksieve run` through the CLI in a fresh process on 1 worker, as users run it (the in-process
  *    runs above share this process's already loaded modules): CPU of the whole process, all threads;
  *  - threads: CPU per chunk in the pool and in bare worker threads (no pool, no scheduler) with 1 and 2
@@ -160,7 +162,8 @@ async function physicsOnly(specJson: string, total: number, threads: number): Pr
   }
 }
 
-const ROUNDS = 5;
+const ROUNDS = 3;
+const LONG_ROUNDS = 2;
 const median = (xs: readonly number[]): number => [...xs].sort((a, b) => a - b)[Math.floor(xs.length / 2)]!;
 
 /** Synthetic columnar chunk results in a scan's layout (invented values). */
@@ -259,6 +262,47 @@ export async function benchIngest(): Promise<{ lines: string[] }> {
   }
 }
 
+/**
+ * Physics only against `run` end to end on the same scan, alternating `rounds` times so that both see
+ * the same machine load, for each worker count; lines with medians and the per-round ratios.
+ */
+async function compareRuns(specFile: string, specInput: unknown, workerCounts: readonly number[], rounds: number): Promise<string[]> {
+  const lines: string[] = [];
+  const spec = parseSpec(specInput).spec!;
+  const total = makePlan(spec, 1).total;
+  const dir = path.dirname(specFile);
+  for (const workers of workerCounts) {
+    const rows: { physics: { wallS: number; cpuS: number }; wallS: number; cpuS: number; computeS: number; evalS: number }[] = [];
+    for (let round = 0; round < rounds; round++) {
+      const physics = await physicsOnly(resolvedSpecJson(spec), total, workers);
+      const db = path.join(dir, `run-${spec.name}-${workers}-${round}.db`);
+      const c0 = process.cpuUsage();
+      const t0 = performance.now();
+      const s = await runScan({ specPath: specFile, dbPath: db, workers, quiet: true, log: silent });
+      if (s.pointsThisRun !== total) throw new Error(`run stored ${s.pointsThisRun} of ${total} points`);
+      rows.push({ physics, wallS: (performance.now() - t0) / 1000, cpuS: cpuSeconds(c0), computeS: s.computeMs / 1000, evalS: sumEvalMs(db) / 1000 });
+      rmSync(db, { force: true });
+    }
+    const m = (f: (r: (typeof rows)[number]) => number): number => median(rows.map(f));
+    const plural = workers > 1 ? 's' : '';
+    lines.push(
+      `${total} points, physics only, ${workers} fresh thread${plural}: ${m((r) => r.physics.wallS).toFixed(2)} s wall (${(total / m((r) => r.physics.wallS)).toFixed(0)} points/s), ` +
+        `${(1000 * m((r) => r.physics.cpuS) / total).toFixed(2)} ms CPU per point`,
+    );
+    lines.push(
+      `  run, ${workers} worker${plural}, end to end (validation, thread start, calibration, ledger, judging): ${m((r) => r.wallS).toFixed(2)} s wall, ` +
+        `overhead ${(100 * (m((r) => r.wallS / r.physics.wallS) - 1)).toFixed(1)} % (target <= 5 %); ` +
+        `once the workers are ready ${(100 * (m((r) => r.computeS / r.physics.wallS) - 1)).toFixed(1)} %; start-up and closing ${m((r) => r.wallS - r.computeS).toFixed(2)} s; ` +
+        `CPU overhead ${(100 * (m((r) => r.cpuS / r.physics.cpuS) - 1)).toFixed(1)} % (median of ${rounds} alternating round${rounds > 1 ? 's' : ''}, per-round ratios: ${rows.map((r) => (r.wallS / r.physics.wallS).toFixed(3)).join(', ')})`,
+    );
+    lines.push(
+      `  scheduling overhead, ${workers} worker${plural}: ${(100 * (m((r) => (r.computeS * workers) / r.evalS) - 1)).toFixed(1)} % ` +
+        `(compute wall x workers vs the threads' own chunk evaluation time)`,
+    );
+  }
+  return lines;
+}
+
 export async function benchScan(): Promise<{ lines: string[] }> {
   const lines: string[] = [];
   const dir = mkdtempSync(path.join(tmpdir(), 'darksieve-bench-scan-'));
@@ -267,35 +311,12 @@ export async function benchScan(): Promise<{ lines: string[] }> {
     writeFileSync(specFile, JSON.stringify(BENCH_SPEC));
     const spec = parseSpec(BENCH_SPEC).spec!;
     const total = makePlan(spec, 1).total;
-    // physics only and `run` alternate, ROUNDS times, so that both see the same machine load
-    for (const workers of [1, 2]) {
-      const rows: { physics: { wallS: number; cpuS: number }; wallS: number; cpuS: number; computeS: number; evalS: number }[] = [];
-      for (let round = 0; round < ROUNDS; round++) {
-        const physics = await physicsOnly(resolvedSpecJson(spec), total, workers);
-        const db = path.join(dir, `run-${workers}-${round}.db`);
-        const c0 = process.cpuUsage();
-        const t0 = performance.now();
-        const s = await runScan({ specPath: specFile, dbPath: db, workers, quiet: true, log: silent });
-        if (s.pointsThisRun !== total) throw new Error(`run stored ${s.pointsThisRun} of ${total} points`);
-        rows.push({ physics, wallS: (performance.now() - t0) / 1000, cpuS: cpuSeconds(c0), computeS: s.computeMs / 1000, evalS: sumEvalMs(db) / 1000 });
-      }
-      const m = (f: (r: (typeof rows)[number]) => number): number => median(rows.map(f));
-      const plural = workers > 1 ? 's' : '';
-      lines.push(
-        `physics only, ${workers} fresh thread${plural}: ${total} points in ${m((r) => r.physics.wallS).toFixed(2)} s wall (${(total / m((r) => r.physics.wallS)).toFixed(0)} points/s), ` +
-          `${(1000 * m((r) => r.physics.cpuS) / total).toFixed(2)} ms CPU per point`,
-      );
-      lines.push(
-        `run, ${workers} worker${plural}, end to end (validation, thread start, calibration, ledger, judging): ${m((r) => r.wallS).toFixed(2)} s wall, ` +
-          `overhead ${(100 * (m((r) => r.wallS / r.physics.wallS) - 1)).toFixed(1)} % (target <= 5 %); ` +
-          `once the workers are ready ${(100 * (m((r) => r.computeS / r.physics.wallS) - 1)).toFixed(1)} %; start-up and closing ${m((r) => r.wallS - r.computeS).toFixed(2)} s; ` +
-          `CPU overhead ${(100 * (m((r) => r.cpuS / r.physics.cpuS) - 1)).toFixed(1)} % (medians of ${ROUNDS} alternating rounds, per-round ratios: ${rows.map((r) => (r.wallS / r.physics.wallS).toFixed(3)).join(', ')})`,
-      );
-      lines.push(
-        `  scheduling overhead, ${workers} worker${plural}: ${(100 * (m((r) => (r.computeS * workers) / r.evalS) - 1)).toFixed(1)} % ` +
-          `(compute wall x workers vs the threads' own chunk evaluation time)`,
-      );
-    }
+    lines.push(...(await compareRuns(specFile, BENCH_SPEC, [1, 2], ROUNDS)));
+    // a 4x longer scan of the same setup, where the fixed start-up weighs a quarter as much (each run ~25 s here)
+    const longSpec = { ...BENCH_SPEC, name: 'bench_long', axes: { ...BENCH_SPEC.axes, m_chi: { ...BENCH_SPEC.axes.m_chi, steps: 240 }, m_med: { ...BENCH_SPEC.axes.m_med, steps: 240 } } };
+    const longFile = path.join(dir, 'bench-long.json');
+    writeFileSync(longFile, JSON.stringify(longSpec));
+    lines.push(...(await compareRuns(longFile, longSpec, [1, 2], LONG_ROUNDS)));
     const physics = await physicsOnly(resolvedSpecJson(spec), total, 1);
     const cli = cliRunCpu([specFile, '--db', path.join(dir, 'cli-1.db'), '--workers', '1', '--quiet']);
     lines.push(

@@ -88,6 +88,11 @@ export const MIN_CHUNK = 8;
 export const MAX_CHUNK = 20_000;
 /** Compute timed to choose a new scan's chunk size: only its order of magnitude matters. */
 export const CALIBRATION_MS = 200;
+/**
+ * Compute timed by `check` for its run-time estimate: long enough for the cost per point to come
+ * near its steady value (compiled code and per-scan caches warm up over the first second or two).
+ */
+export const CHECK_CALIBRATION_MS = 1500;
 
 /** Package version plus the git commit of the sources, when they are in a git work tree. */
 export function codeVersion(root: URL = new URL('..', import.meta.url)): string {
@@ -116,7 +121,7 @@ export function preparePhysics(spec: ScanSpec, engine: PhysicsEngine): PreparedP
 export type { Calibration };
 
 /** Calibrates in this process (see calibrateEvaluator); `check` uses it, `run` calibrates in its worker threads. */
-export async function calibrate(spec: ScanSpec, engine: PhysicsEngine, budgetMs = 600, blocks = 6, blockSize = 8): Promise<Calibration> {
+export async function calibrate(spec: ScanSpec, engine: PhysicsEngine, budgetMs = CHECK_CALIBRATION_MS, blocks = 6, blockSize = 8): Promise<Calibration> {
   return calibrateEvaluator(await ChunkEvaluator.create(resolvedSpecJson(spec), engine), budgetMs, blocks, blockSize);
 }
 
@@ -285,7 +290,8 @@ export async function runScan(options: RunOptions): Promise<RunSummary> {
   } else if (options.chunkSize !== undefined) {
     chunkSize = options.chunkSize;
   } else {
-    chunkSize = chooseChunkSize(calibration!.msPerPoint, makePlan(spec, 1).total, workers);
+    // the late cost: the mean over a cold calibration overstates the steady cost several times over
+    chunkSize = chooseChunkSize(calibration!.lateMsPerPoint, makePlan(spec, 1).total, workers);
   }
   const plan = makePlan(spec, chunkSize);
 

@@ -10,6 +10,7 @@ import { loadPhysicsEngine } from '../chunk.js';
 import { axisSummary } from '../plan.js';
 import { formatDuration } from '../progress.js';
 import { calibrate, chooseChunkSize, compileSpecConstraints, preparePhysics } from '../run.js';
+import { estimateRunSeconds } from '../chunk.js';
 import { loadSpecFile, makePlan, resolvedSpecJson, specHash } from '../spec.js';
 
 interface CheckOptions {
@@ -43,9 +44,9 @@ export function registerCheck(program: Command): void {
       const constraints = compileSpecConstraints(spec, specPath);
       const total = makePlan(spec, 1).total;
       const cal = await calibrate(spec, engine);
-      const chunkSize = chunkOpt ?? chooseChunkSize(cal.msPerPoint, total, workers);
+      const chunkSize = chunkOpt ?? chooseChunkSize(cal.lateMsPerPoint, total, workers);
       const plan = makePlan(spec, chunkSize);
-      const estimateS = (plan.total * cal.msPerPoint) / 1000 / workers;
+      const estimateS = estimateRunSeconds(cal, plan.total, workers);
       const fixed = Object.entries(spec.model).map(([k, v]) => `${k}=${v ?? 'computed'}`);
       const report = {
         name: spec.name,
@@ -60,7 +61,7 @@ export function registerCheck(program: Command): void {
         targets: spec.setup.targets.map((t) => t.name),
         observables: prepared.observableNames,
         constraints: constraints?.columns ?? [],
-        calibration: { points: cal.points, ms_per_point: cal.msPerPoint, errors: cal.errors },
+        calibration: { points: cal.points, ms_per_point: cal.msPerPoint, late_points: cal.latePoints, late_ms_per_point: cal.lateMsPerPoint, errors: cal.errors },
         workers,
         estimated_s: estimateS,
       };
@@ -80,8 +81,8 @@ export function registerCheck(program: Command): void {
         `observables: ${prepared.observableNames.length} numeric columns + flags`,
         `constraints: ${report.constraints.join(', ') || '(none)'}`,
         ...(constraints?.warnings ?? []).map((w) => `warning: ${w}`),
-        `calibration: ${cal.points} points evaluated, ${cal.msPerPoint.toFixed(2)} ms/point${cal.errors > 0 ? `, ${cal.errors} flagged with errors` : ''}`,
-        `estimated run time: ${formatDuration(estimateS)} on ${workers} worker${workers === 1 ? '' : 's'}`,
+        `calibration: ${cal.points} points evaluated, ${cal.msPerPoint.toFixed(2)} ms/point on average, ${cal.lateMsPerPoint.toFixed(2)} ms/point in its later half (cold start: compiled code and caches warming up)${cal.errors > 0 ? `, ${cal.errors} flagged with errors` : ''}`,
+        `estimated run time: ${formatDuration(estimateS)} on ${workers} worker${workers === 1 ? '' : 's'} (one cold start per worker, then the later cost per point, workers in parallel: more where they share busy cores)`,
       ];
       process.stdout.write(`${lines.join('\n')}\n`);
     });

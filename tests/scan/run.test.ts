@@ -13,7 +13,7 @@ import { execFileSync } from 'node:child_process';
 import { mkdtempSync, rmSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { pathToFileURL } from 'node:url';
-import { mergeCalibrations } from '../../scheduler/chunk.js';
+import { CALIBRATION_ROUNDS, calibrateEvaluator, estimateRunSeconds, mergeCalibrations } from '../../scheduler/chunk.js';
 import { redactRedisUrl } from '../../scheduler/redis/connection.js';
 import { FAKE_PHYSICS, pointRows, query, tempDir, writeSpec } from './helpers.js';
 
@@ -202,11 +202,36 @@ describe('the printed resume command', () => {
 });
 
 describe('calibration shared by the threads', () => {
-  it('merges as the cost per point over all timed points', () => {
-    // common practice, no source: a points-weighted mean of the per-thread costs
-    const merged = mergeCalibrations([{ points: 40, msPerPoint: 2, errors: 1 }, { points: 10, msPerPoint: 7, errors: 0 }]);
-    expect(merged).toEqual({ points: 50, msPerPoint: (40 * 2 + 10 * 7) / 50, errors: 1 });
-    expect(mergeCalibrations([{ points: 8, msPerPoint: 0.5, errors: 0 }])).toEqual({ points: 8, msPerPoint: 0.5, errors: 0 });
+  it('merges as the costs per point over all timed points', () => {
+    // common practice, no source: points-weighted means of the per-thread costs
+    const a = { points: 40, msPerPoint: 2, latePoints: 16, lateMsPerPoint: 1, errors: 1 };
+    const b = { points: 10, msPerPoint: 7, latePoints: 8, lateMsPerPoint: 4, errors: 0 };
+    expect(mergeCalibrations([a, b])).toEqual({ points: 50, msPerPoint: (40 * 2 + 10 * 7) / 50, latePoints: 24, lateMsPerPoint: (16 * 1 + 8 * 4) / 24, errors: 1 });
+    expect(mergeCalibrations([a])).toEqual(a);
+  });
+
+  it('estimates a run as one cold start per worker plus every point at the later cost', () => {
+    // common practice, no source: 100 points timed at 2 ms on average, 0.5 ms late -> 150 ms cold start
+    const c = { points: 100, msPerPoint: 2, latePoints: 40, lateMsPerPoint: 0.5, errors: 0 };
+    expect(estimateRunSeconds(c, 10_000, 1)).toBeCloseTo((150 + 5000) / 1000, 12);
+    expect(estimateRunSeconds(c, 10_000, 2)).toBeCloseTo((150 + 2500) / 1000, 12);
+    // a calibration no colder than its later half has no cold start
+    expect(estimateRunSeconds({ ...c, msPerPoint: 0.5 }, 1000, 1)).toBeCloseTo(0.5, 12);
+  });
+
+  it('a single thread times blocks spread over the scan and reports the later half apart', async () => {
+    const { ChunkEvaluator, loadPhysicsEngine } = await import('../../scheduler/chunk.js');
+    const { parseSpec, resolvedSpecJson } = await import('../../scheduler/spec.js');
+    const evaluator = await ChunkEvaluator.create(resolvedSpecJson(parseSpec(JSON.parse(readFileSync(specFile, 'utf8'))).spec!), await loadPhysicsEngine(FAKE_PHYSICS));
+    const c = calibrateEvaluator(evaluator, 600_000);
+    // every round runs when the budget does not stop it: blocks of 8 in 6 parts
+    expect(c.points).toBe(CALIBRATION_ROUNDS * 6 * 8);
+    expect(c.latePoints % 8).toBe(0);
+    expect(c.latePoints).toBeGreaterThan(0);
+    expect(c.latePoints).toBeLessThan(c.points);
+    expect(c.lateMsPerPoint).toBeGreaterThan(0);
+    // 24 of the 120 points throw in the fake physics (g_q = 1): flagged, counted
+    expect(c.errors).toBeGreaterThan(0);
   });
 
   it('the pool\'s threads each time a share of the budget on interleaved rounds', async () => {
@@ -219,8 +244,8 @@ describe('calibration shared by the threads', () => {
     try {
       await pool.open({ scanKey: 'cal', resolvedSpecJson: resolvedSpecJson(parsed), observableNames: numericObservableNames(['xe_fake'], []) });
       const c = pool.started!.calibration!;
-      // 8 rounds of 6 blocks of 8 points in all, 4 rounds in each of the 2 threads
-      expect(c.points).toBe(2 * 4 * 6 * 8);
+      // every round of 6 blocks of 8 points once, half of them in each of the 2 threads
+      expect(c.points).toBe(CALIBRATION_ROUNDS * 6 * 8);
       expect(c.msPerPoint).toBeGreaterThan(0);
     } finally {
       await pool.close();

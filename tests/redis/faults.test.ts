@@ -16,8 +16,8 @@ import { RedisTransport } from '../../scheduler/redis/transport.js';
 import { WorkerService } from '../../scheduler/redis/worker-service.js';
 import { FAKE_PHYSICS, pointRows, query, tempDir, writeSpec } from '../scan/helpers.js';
 import {
-  MECH_SPEC, PrivateRedis, SLOW_PHYSICS, TEST_REDIS_URL, cleanupPrefix, exited, freePort, haveRedisServer, killAll, newPrefix,
-  redisAvailable, startScheduler, startWorker, waitFor,
+  MECH_SPEC, PrivateRedis, SLOW_PHYSICS, TEST_CODE_VERSION, TEST_REDIS_URL, cleanupPrefix, exited, freePort, haveRedisServer, killAll,
+  newPrefix, redisAvailable, startScheduler, startWorker, waitFor,
 } from './helpers.js';
 
 const available = await redisAvailable();
@@ -60,14 +60,14 @@ describe.skipIf(!available)('fault tolerance on Redis', () => {
     const p = prefix();
     const a = startWorker(TEST_REDIS_URL, p, { msPerPoint: 60 });
     cleanups.push(() => killAll([a]));
-    const t = new RedisTransport({ url: TEST_REDIS_URL, prefix: p, ledgerTag: 'test', codeVersion: 'test', pollMs: 200, log: silent });
+    const t = new RedisTransport({ url: TEST_REDIS_URL, prefix: p, ledgerTag: 'test', codeVersion: TEST_CODE_VERSION, pollMs: 200, log: silent });
     const db = path.join(tmp.dir, 'worker-kill.db');
     const scan = runScan({ specPath: specFile, dbPath: db, physicsModule: FAKE_PHYSICS, quiet: true, log: silent, chunkSize: CHUNK, transport: t });
     const queue = await waitFor('the work queue', () => t.workQueue !== '' && new Queue(t.workQueue, { connection: bullConnection(redisOptionsFromUrl(TEST_REDIS_URL)), prefix: p }));
     try {
       const held = await waitFor('worker A to hold a chunk', async () => (await queue.getJobs(['active'])).find((j) => j.processedBy?.includes(`-${a.pid}-`)), 90_000);
       // B joins now, so that A surely holds chunks when it dies; B picks up the rest and A's stalled ones
-      const b = new WorkerService({ url: TEST_REDIS_URL, prefix: p, concurrency: 1, codeVersion: 'test', physicsModule: FAKE_PHYSICS, pollMs: 200, heartbeatMs: 500, lockDurationMs: 2000, stalledIntervalMs: 1000, log: silent });
+      const b = new WorkerService({ url: TEST_REDIS_URL, prefix: p, concurrency: 1, codeVersion: TEST_CODE_VERSION, physicsModule: FAKE_PHYSICS, pollMs: 200, heartbeatMs: 500, lockDurationMs: 2000, stalledIntervalMs: 1000, log: silent });
       await b.start();
       cleanups.push(() => b.close(true));
       await sleep(Math.random() * 300);
@@ -86,7 +86,7 @@ describe.skipIf(!available)('fault tolerance on Redis', () => {
 
   it('the scheduler SIGKILLed mid-scan: the same command resumes; results already in Redis are ingested once', async () => {
     const p = prefix();
-    const w = new WorkerService({ url: TEST_REDIS_URL, prefix: p, concurrency: 2, codeVersion: 'test', physicsModule: SLOW_PHYSICS, pollMs: 200, heartbeatMs: 500, log: silent });
+    const w = new WorkerService({ url: TEST_REDIS_URL, prefix: p, concurrency: 2, codeVersion: TEST_CODE_VERSION, physicsModule: SLOW_PHYSICS, pollMs: 200, heartbeatMs: 500, log: silent });
     await w.start();
     cleanups.push(() => w.close(true));
     const db = path.join(tmp.dir, 'scheduler-kill.db');
@@ -119,11 +119,11 @@ describe.skipIf(!available)('fault tolerance on Redis', () => {
     await redis.start();
     cleanups.push(() => redis.stop());
     const p = newPrefix();
-    const worker = new WorkerService({ url: redis.url, prefix: p, concurrency: 2, codeVersion: 'test', physicsModule: SLOW_PHYSICS, pollMs: 200, heartbeatMs: 500, lockDurationMs: 2000, stalledIntervalMs: 1000, log: silent });
+    const worker = new WorkerService({ url: redis.url, prefix: p, concurrency: 2, codeVersion: TEST_CODE_VERSION, physicsModule: SLOW_PHYSICS, pollMs: 200, heartbeatMs: 500, lockDurationMs: 2000, stalledIntervalMs: 1000, log: silent });
     await worker.start();
     cleanups.push(() => worker.close(true));
     const lines: string[] = [];
-    const t = new RedisTransport({ url: redis.url, prefix: p, ledgerTag: 'test', codeVersion: 'test', pollMs: 200, log: (l) => lines.push(l) });
+    const t = new RedisTransport({ url: redis.url, prefix: p, ledgerTag: 'test', codeVersion: TEST_CODE_VERSION, pollMs: 200, log: (l) => lines.push(l) });
     const db = path.join(tmp.dir, 'redis-restart.db');
     const scan = runScan({ specPath: specFile, dbPath: db, physicsModule: FAKE_PHYSICS, quiet: true, log: silent, chunkSize: CHUNK, transport: t });
     await waitFor('a chunk stored before the restart', () => {
@@ -142,13 +142,13 @@ describe.skipIf(!available)('fault tolerance on Redis', () => {
 
   it('workers joining late take chunks, status shows them and the queue, and a worker leaving does not stop the scan', async () => {
     const p = prefix();
-    const mk = () => new WorkerService({ url: TEST_REDIS_URL, prefix: p, concurrency: 1, codeVersion: 'test', physicsModule: SLOW_PHYSICS, pollMs: 200, heartbeatMs: 500, log: silent });
+    const mk = () => new WorkerService({ url: TEST_REDIS_URL, prefix: p, concurrency: 1, codeVersion: TEST_CODE_VERSION, physicsModule: SLOW_PHYSICS, pollMs: 200, heartbeatMs: 500, log: silent });
     const first = mk();
     await first.start();
     cleanups.push(() => first.close(true));
     const db = path.join(tmp.dir, 'late.db');
     // the ledger tag of the real CLI, so that status finds the queue from the ledger path
-    const t = new RedisTransport({ url: TEST_REDIS_URL, prefix: p, ledgerTag: ledgerTag(db), codeVersion: 'test', pollMs: 200, log: silent });
+    const t = new RedisTransport({ url: TEST_REDIS_URL, prefix: p, ledgerTag: ledgerTag(db), codeVersion: TEST_CODE_VERSION, pollMs: 200, log: silent });
     const scan = runScan({ specPath: specFile, dbPath: db, physicsModule: FAKE_PHYSICS, quiet: true, log: silent, chunkSize: CHUNK, transport: t });
     await waitFor('a first chunk', () => {
       try {

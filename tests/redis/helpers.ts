@@ -15,6 +15,13 @@ import { Redis } from 'ioredis';
 import { bullConnection, probeRedis, redisOptionsFromUrl } from '../../scheduler/redis/connection.js';
 import { scanSetKey } from '../../scheduler/redis/keys.js';
 import { REPO } from '../scan/helpers.js';
+import { codeVersion } from '../../scheduler/run.js';
+
+/**
+ * The code version every scheduler and worker of the tests announces: the real one, because worker
+ * processes (runBullWorker) announce it and refuse scans of any other.
+ */
+export const TEST_CODE_VERSION = codeVersion();
 
 export const TEST_REDIS_URL = process.env.TEST_REDIS_URL ?? process.env.REDIS_URL ?? 'redis://127.0.0.1:6379';
 export const SLOW_PHYSICS = new URL('./slow-physics.ts', import.meta.url).href;

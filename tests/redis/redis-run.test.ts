@@ -11,7 +11,7 @@ import { RedisTransport } from '../../scheduler/redis/transport.js';
 import { redactRedisUrl } from '../../scheduler/redis/connection.js';
 import { WorkerService } from '../../scheduler/redis/worker-service.js';
 import { FAKE_PHYSICS, pointRows, query, tempDir, writeSpec } from '../scan/helpers.js';
-import { CRASHY_PHYSICS, MECH_SPEC, MECH_TOTAL, TEST_REDIS_URL, announcedScans, cleanupPrefix, keysUnder, newPrefix, redisAvailable, waitFor } from './helpers.js';
+import { CRASHY_PHYSICS, MECH_SPEC, MECH_TOTAL, TEST_CODE_VERSION, TEST_REDIS_URL, announcedScans, cleanupPrefix, keysUnder, newPrefix, redisAvailable, waitFor } from './helpers.js';
 
 const available = await redisAvailable();
 
@@ -43,13 +43,13 @@ describe.skipIf(!available)('scans through Redis (BullMQ)', () => {
     return p;
   };
   const transport = (p: string, extra: Partial<ConstructorParameters<typeof RedisTransport>[0]> = {}) =>
-    new RedisTransport({ url: TEST_REDIS_URL, prefix: p, ledgerTag: 'test', codeVersion: 'test', pollMs: 200, log: silent, ...extra });
+    new RedisTransport({ url: TEST_REDIS_URL, prefix: p, ledgerTag: 'test', codeVersion: TEST_CODE_VERSION, pollMs: 200, log: silent, ...extra });
   const run = (db: string, t: RedisTransport, extra: Partial<RunOptions> = {}) =>
     runScan({ specPath: specFile, dbPath: db, physicsModule: FAKE_PHYSICS, quiet: true, log: silent, chunkSize: 16, transport: t, ...extra });
 
   it('gives the embedded pool rows bit for bit and leaves no queue behind', async () => {
     const p = prefix();
-    const worker = new WorkerService({ url: TEST_REDIS_URL, prefix: p, concurrency: 2, codeVersion: 'test', physicsModule: FAKE_PHYSICS, pollMs: 200, log: silent });
+    const worker = new WorkerService({ url: TEST_REDIS_URL, prefix: p, concurrency: 2, codeVersion: TEST_CODE_VERSION, physicsModule: FAKE_PHYSICS, pollMs: 200, log: silent });
     await worker.start();
     try {
       const db = path.join(tmp.dir, 'redis.db');
@@ -69,7 +69,7 @@ describe.skipIf(!available)('scans through Redis (BullMQ)', () => {
   it('records a chunk that fails every attempt, goes on, and retries it on resume', async () => {
     const p = prefix();
     // crashy physics kills its thread at one point: exactly one chunk fails, twice
-    const worker = new WorkerService({ url: TEST_REDIS_URL, prefix: p, concurrency: 2, codeVersion: 'test', physicsModule: CRASHY_PHYSICS, pollMs: 200, log: silent });
+    const worker = new WorkerService({ url: TEST_REDIS_URL, prefix: p, concurrency: 2, codeVersion: TEST_CODE_VERSION, physicsModule: CRASHY_PHYSICS, pollMs: 200, log: silent });
     await worker.start();
     const db = path.join(tmp.dir, 'crashy.db');
     try {
@@ -89,7 +89,7 @@ describe.skipIf(!available)('scans through Redis (BullMQ)', () => {
       await worker.close();
     }
     // resume with well-behaved workers: the failed chunks run again and the ledger ends complete
-    const good = new WorkerService({ url: TEST_REDIS_URL, prefix: p, concurrency: 2, codeVersion: 'test', physicsModule: FAKE_PHYSICS, pollMs: 200, log: silent });
+    const good = new WorkerService({ url: TEST_REDIS_URL, prefix: p, concurrency: 2, codeVersion: TEST_CODE_VERSION, physicsModule: FAKE_PHYSICS, pollMs: 200, log: silent });
     await good.start();
     try {
       const s = await run(db, transport(p));
@@ -113,13 +113,13 @@ describe.skipIf(!available)('scans through Redis (BullMQ)', () => {
     try {
       const scan = run(db, t);
       await waitFor('the other-code worker to refuse the scan', () => linesOther.some((l) => l.startsWith('not serving scan')), 5000);
-      expect(linesOther.join('\n')).toMatch(/started by code test and this worker runs other; results are bit-identical only with the same code/);
+      expect(linesOther.join('\n')).toContain(`started by code ${TEST_CODE_VERSION} and this worker runs other; results are bit-identical only with the same code`);
       expect(other.serving).toEqual([]);
       allowed = new WorkerService({ url: TEST_REDIS_URL, prefix: p, concurrency: 1, codeVersion: 'other', allowOtherCode: true, physicsModule: FAKE_PHYSICS, pollMs: 200, log: (l) => linesAllowed.push(l) });
       await allowed.start();
       const s = await scan;
       expect(s.status).toBe('done');
-      expect(linesAllowed.join('\n')).toMatch(/warning: scan .* was started by code test, this worker runs other; serving it as asked/);
+      expect(linesAllowed.join('\n')).toContain(`was started by code ${TEST_CODE_VERSION}, this worker runs other; serving it as asked`);
       // every chunk was evaluated by the worker that was allowed to serve it
       expect(other.serving).toEqual([]);
       expect(pointRows(db)).toEqual(reference);
@@ -133,7 +133,7 @@ describe.skipIf(!available)('scans through Redis (BullMQ)', () => {
     const p = prefix();
     // the poll runs once at start (no scan yet) and then not for 10 minutes: only the announcement
     // message can bring this scan to the worker
-    const worker = new WorkerService({ url: TEST_REDIS_URL, prefix: p, concurrency: 1, codeVersion: 'test', physicsModule: FAKE_PHYSICS, pollMs: 600_000, log: silent });
+    const worker = new WorkerService({ url: TEST_REDIS_URL, prefix: p, concurrency: 1, codeVersion: TEST_CODE_VERSION, physicsModule: FAKE_PHYSICS, pollMs: 600_000, log: silent });
     await worker.start();
     const db = path.join(tmp.dir, 'announced.db');
     const t = transport(p);

@@ -6,6 +6,7 @@
 import { runScan } from '../../scheduler/run.js';
 import { RedisTransport } from '../../scheduler/redis/transport.js';
 import { FAKE_PHYSICS } from '../scan/helpers.js';
+import { TEST_CODE_VERSION } from './helpers.js';
 
 const env = (name: string): string => {
   const v = process.env[name];
@@ -14,7 +15,7 @@ const env = (name: string): string => {
 };
 
 const transport = new RedisTransport({
-  url: env('DSTEST_URL'), prefix: env('DSTEST_PREFIX'), ledgerTag: 'test', codeVersion: 'test', pollMs: 200,
+  url: env('DSTEST_URL'), prefix: env('DSTEST_PREFIX'), ledgerTag: 'test', codeVersion: TEST_CODE_VERSION, pollMs: 200,
   resultLockMs: 2000, resultStalledIntervalMs: 1000,
 });
 const summary = await runScan({

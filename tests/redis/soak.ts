@@ -14,7 +14,7 @@ import { bullConnection, redisOptionsFromUrl } from '../../scheduler/redis/conne
 import { RedisTransport } from '../../scheduler/redis/transport.js';
 import { WorkerService } from '../../scheduler/redis/worker-service.js';
 import { FAKE_PHYSICS, pointRows, query, tempDir, writeSpec } from '../scan/helpers.js';
-import { MECH_SPEC, SLOW_PHYSICS, TEST_REDIS_URL, cleanupPrefix, exited, killAll, newPrefix, startScheduler, startWorker, waitFor } from './helpers.js';
+import { MECH_SPEC, SLOW_PHYSICS, TEST_CODE_VERSION, TEST_REDIS_URL, cleanupPrefix, exited, killAll, newPrefix, startScheduler, startWorker, waitFor } from './helpers.js';
 
 const trialsArg = process.argv.indexOf('--trials');
 const TRIALS = trialsArg > 0 ? Number(process.argv[trialsArg + 1]) : 5;
@@ -49,7 +49,7 @@ async function workerTrial(k: number): Promise<string | null> {
   const db = path.join(tmp.dir, `w${k}.db`);
   const workers = [startWorker(TEST_REDIS_URL, p, { msPerPoint: 40 }), startWorker(TEST_REDIS_URL, p, { msPerPoint: 40 })];
   try {
-    const t = new RedisTransport({ url: TEST_REDIS_URL, prefix: p, ledgerTag: 'soak', codeVersion: 'test', pollMs: 200, log: silent });
+    const t = new RedisTransport({ url: TEST_REDIS_URL, prefix: p, ledgerTag: 'soak', codeVersion: TEST_CODE_VERSION, pollMs: 200, log: silent });
     const scan = runScan({ specPath: specFile, dbPath: db, physicsModule: FAKE_PHYSICS, quiet: true, log: silent, chunkSize: CHUNK, transport: t });
     const queue = await waitFor('the work queue', () => t.workQueue !== '' && new Queue(t.workQueue, { connection: bullConnection(redisOptionsFromUrl(TEST_REDIS_URL)), prefix: p }));
     const victimJob = await waitFor('a worker holding a chunk', async () => (await queue.getJobs(['active']))[0], 120_000);
@@ -70,7 +70,7 @@ async function workerTrial(k: number): Promise<string | null> {
 async function schedulerTrial(k: number): Promise<string | null> {
   const p = newPrefix();
   const db = path.join(tmp.dir, `s${k}.db`);
-  const w = new WorkerService({ url: TEST_REDIS_URL, prefix: p, concurrency: 2, codeVersion: 'test', physicsModule: SLOW_PHYSICS, pollMs: 200, heartbeatMs: 500, log: silent });
+  const w = new WorkerService({ url: TEST_REDIS_URL, prefix: p, concurrency: 2, codeVersion: TEST_CODE_VERSION, physicsModule: SLOW_PHYSICS, pollMs: 200, heartbeatMs: 500, log: silent });
   await w.start();
   try {
     const kills = 1 + Math.floor(Math.random() * 3);

@@ -114,8 +114,24 @@ export function spectrumOf(source: YieldSource, mGeV: number): Spectrum {
       return (x) => fsrYield(x, mGeV, mf);
     }
     case 'table':
-      return tableSpectrum(source.table as YieldTable);
+      return tableSpectrumOf(source.table as YieldTable);
   }
+}
+
+/**
+ * One interpolant per user table (the table arrays live as long as the prepared setup): building it
+ * copies the table, which spectrumOf would otherwise do at every photon-yield memo miss, i.e. at
+ * every new mass of a random scan. Same function, so the same numbers.
+ */
+const TABLE_SPECTRA = new WeakMap<YieldTable, Spectrum>();
+
+function tableSpectrumOf(table: YieldTable): Spectrum {
+  let f = TABLE_SPECTRA.get(table);
+  if (f === undefined) {
+    f = tableSpectrum(table);
+    TABLE_SPECTRA.set(table, f);
+  }
+  return f;
 }
 
 /** Number of photons of a spectrum with x in [xLo, xHi] (band integral in ln x). */

@@ -135,6 +135,15 @@ describe('user tables', () => {
     // Int_0.01^1 x^{-2} * 1e-2 ... : dN/dx = 0.01 x^-2 -> Int = 0.01 (1/0.01 - 1) = 0.99
     close('integral', bandCount(f, 0.01, 1, table.map((r) => r[0])), 0.99, 1e-9);
   });
+  it('a table source gives one interpolant for every mass, with the table\'s values', () => {
+    // common practice, no source: the interpolant does not depend on the mass (x = E/m_chi)
+    const table = [[0.01, 100], [0.1, 1], [1, 0.01]] as const;
+    const src = yieldSourceFor('b', { b: table })!;
+    const f = spectrumOf(src, 50);
+    expect(spectrumOf(src, 700)).toBe(f);
+    expect(spectrumOf({ kind: 'table', table }, 3)).toBe(f);
+    for (const x of [0.01, 0.05, 0.3, 1]) expect(f(x)).toBe(tableSpectrum(table)(x));
+  });
   it('invalid tables are reported with their path', () => {
     const issues = checkYieldTables({ b: [[0.5, 1], [0.2, 1]], tau: [[0.1, -1], [0.2, 1]], mu: [[0.1, 1]] });
     const paths = issues.map((i) => i.path);

@@ -207,6 +207,12 @@ export class Plan {
   private readonly sampled: readonly Axis[];
   private readonly sizes: readonly number[];
   private readonly equals: readonly CompiledEquals[];
+  /** the model's fixed values in PARAMETER_COLUMNS order (null where not set) */
+  private readonly fixedColumns: readonly ParamValue[];
+  /** PARAMETER_COLUMNS index of each sampled axis's parameter */
+  private readonly sampledColumns: readonly number[];
+  /** the columns equals expressions see: the model's parameters and the sampled ones */
+  private readonly scopeColumns: readonly number[];
 
   /** `equals`: the spec's equals axes compiled in dependency order (spec.ts planEquals). */
   constructor(spec: ScanSpec, chunkSize: number, equals: readonly CompiledEquals[]) {
@@ -220,6 +226,10 @@ export class Plan {
     const missing = spec.axes.filter((a) => a.kind === 'equals' && !equals.some((e) => e.param === a.param));
     if (missing.length > 0) throw new Error(`equals axes not compiled: ${missing.map((a) => a.param).join(', ')}`);
     this.equals = equals;
+    const model = spec.model as Record<string, ParamValue | undefined>;
+    this.fixedColumns = PARAMETER_COLUMNS.map((c) => model[c] ?? null);
+    this.sampledColumns = this.sampled.map((a) => PARAMETER_COLUMNS.indexOf(a.param));
+    this.scopeColumns = PARAMETER_COLUMNS.flatMap((c, i) => (c in model || this.sampledColumns.includes(i) ? [i] : []));
   }
 
   chunkRange(chunk: number): ChunkRange {
@@ -238,40 +248,44 @@ export class Plan {
    * parameter is then NaN and the others are still filled in).
    */
   paramsInto(id: number, out: ParamValue[]): string | null {
-    const values: Record<string, ParamValue> = { ...this.spec.model };
+    // values go straight into their columns: a few array writes per point instead of an object per
+    // point (5-7 us per point before, on the bench scan)
+    for (let c = 0; c < PARAMETER_COLUMNS.length; c++) out[c] = this.fixedColumns[c] ?? null;
     const sampling = this.spec.sampling;
-    let error: string | null = null;
     if (sampling.kind === 'grid') {
       let rest = id;
       for (let i = this.sampled.length - 1; i >= 0; i--) {
         const size = this.sizes[i]!;
         const digit = rest % size;
         rest = (rest - digit) / size;
-        values[this.sampled[i]!.param] = gridValue(this.sampled[i]!, digit);
+        out[this.sampledColumns[i]!] = gridValue(this.sampled[i]!, digit);
       }
     } else {
-      this.sampled.forEach((axis, i) => {
+      for (let i = 0; i < this.sampled.length; i++) {
         let u = uniform01(sampling.seed, id, i);
         if (sampling.kind === 'latin_hypercube') u = (permuteIndex(id, sampling.count, sampling.seed, i) + u) / sampling.count;
-        values[axis.param] = sampledValue(axis, u);
-      });
-    }
-    if (this.equals.length > 0) {
-      const scope: Record<string, number> = {};
-      for (const [k, v] of Object.entries(values)) scope[k] = typeof v === 'number' ? v : NaN;
-      for (const { param, evaluate, expression } of this.equals) {
-        const v = evaluate(scope);
-        let value = typeof v === 'number' ? v : NaN;
-        const issue = checkNumber(PARAM_BY_NAME.get(param) as Parameters<typeof checkNumber>[0], value, `axes.${param}.equals`);
-        if (issue) {
-          error ??= `${param} = ${String(v)} from '${expression}' is outside ${issue.allowed ?? 'its range'}`;
-          value = NaN;
-        }
-        values[param] = value;
-        scope[param] = value;
+        out[this.sampledColumns[i]!] = sampledValue(this.sampled[i]!, u);
       }
     }
-    for (let i = 0; i < PARAMETER_COLUMNS.length; i++) out[i] = values[PARAMETER_COLUMNS[i]!] ?? null;
+    if (this.equals.length === 0) return null;
+    // equals axes see the model's and the sampled parameters (text and unset ones as NaN)
+    const scope: Record<string, number> = {};
+    for (const c of this.scopeColumns) {
+      const v = out[c];
+      scope[PARAMETER_COLUMNS[c]!] = typeof v === 'number' ? v : NaN;
+    }
+    let error: string | null = null;
+    for (const { param, evaluate, expression } of this.equals) {
+      const v = evaluate(scope);
+      let value = typeof v === 'number' ? v : NaN;
+      const issue = checkNumber(PARAM_BY_NAME.get(param) as Parameters<typeof checkNumber>[0], value, `axes.${param}.equals`);
+      if (issue) {
+        error ??= `${param} = ${String(v)} from '${expression}' is outside ${issue.allowed ?? 'its range'}`;
+        value = NaN;
+      }
+      out[PARAMETER_COLUMNS.indexOf(param)] = value;
+      scope[param] = value;
+    }
     return error;
   }
 

@@ -4,7 +4,7 @@
  */
 import { describe, expect, it } from 'vitest';
 import { makePlan, parseSpec, resolvedSpecJson, specFromResolvedJson, specHash } from '../../scheduler/spec.js';
-import { decodeResolvedSpec, permuteIndex, uniform01 } from '../../scheduler/plan.js';
+import { PARAMETER_COLUMNS, decodeResolvedSpec, permuteIndex, uniform01 } from '../../scheduler/plan.js';
 import { MALFORMED, baseSpec, malformed } from './malformed-specs.js';
 
 
@@ -115,6 +115,38 @@ describe('plan', () => {
     const strata = new Set<number>();
     for (let id = 0; id < 50; id++) strata.add(Math.floor(((plan.point(id).m_chi - 10) / 990) * 50));
     expect(strata.size).toBe(50);
+  });
+
+  it('an equals axis changes only its own column: grid, random and Latin-hypercube parameters keep their bits', () => {
+    // common practice, no source: adding an equals axis on g_l, which nothing else reads, must leave
+    // every other parameter of every point bit for bit as it was (sampled axes are numbered without it)
+    const f64 = new Float64Array(1);
+    const u64 = new BigUint64Array(f64.buffer);
+    const bitsOf = (v: unknown): unknown => {
+      if (typeof v !== 'number') return v;
+      f64[0] = v;
+      return u64[0];
+    };
+    for (const sampling of [undefined, { kind: 'random', count: 500, seed: 11 }, { kind: 'latin_hypercube', count: 500, seed: 12 }]) {
+      const s = baseSpec();
+      delete s.axes.g_chi;
+      s.axes.m_chi = sampling ? { from: 10, to: 1000, spacing: 'log' } : { from: 10, to: 1000, steps: 50, spacing: 'log' };
+      s.axes.g_q = sampling ? { from: 0.01, to: 1, spacing: 'lin' } : { from: 0.01, to: 1, steps: 5 };
+      delete s.model.g_q;
+      if (sampling) s.sampling = sampling;
+      const direct = makePlan(parseSpec(s).spec!, 10);
+      const general = makePlan(parseSpec({ ...s, axes: { ...s.axes, g_l: { equals: '0.5 * g_q' } } }).spec!, 10);
+      expect(direct.total).toBe(500);
+      const gl = PARAMETER_COLUMNS.indexOf('g_l');
+      const a = new Array(PARAMETER_COLUMNS.length);
+      const b = new Array(PARAMETER_COLUMNS.length);
+      for (let id = 0; id < direct.total; id++) {
+        expect(direct.paramsInto(id, a)).toBeNull();
+        expect(general.paramsInto(id, b)).toBeNull();
+        b[gl] = a[gl];
+        expect(a.map(bitsOf), `${sampling?.kind ?? 'grid'} id ${id}`).toEqual(b.map(bitsOf));
+      }
+    }
   });
 
   it('an equals value out of range fails that point only', () => {

@@ -53,7 +53,7 @@ const THREAD_SOURCE = new URL('../workers/thread.ts', import.meta.url);
 
 /**
  * Where a new thread starts: the cached bundle of workers/thread.ts (bin/bundle-cache.mjs; a thread
- * is ready in about half the time), looked up again for each thread so that a replacement thread runs
+ * is ready in about a third of the time), looked up again for each thread so that a replacement thread runs
  * the code now on disk, as it would through tsx; or the tsx entry when there is no bundle or a
  * stand-in physics module (a .ts file) is to be loaded.
  */

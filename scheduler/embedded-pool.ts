@@ -44,9 +44,6 @@ export interface PoolStarted {
   readonly calibration: Calibration | null;
 }
 
-/** What one thread reported when it became ready (its own calibration only). */
-type ThreadStarted = PoolStarted;
-
 /** the thread through the tsx loader (workers/thread-entry.mjs registers it) */
 const THREAD_ENTRY = new URL('../workers/thread-entry.mjs', import.meta.url);
 const THREAD_SOURCE = new URL('../workers/thread.ts', import.meta.url);
@@ -110,14 +107,15 @@ export class EmbeddedPool implements Transport {
   async open(work: ScanWork): Promise<void> {
     if (this.work) throw new Error('the pool is already open');
     this.work = work;
-    const share = this.calibrateMs > 0 ? { ms: this.calibrateMs / this.workers, step: this.workers } : null;
-    const started = await Promise.allSettled(Array.from({ length: this.workers }, (_, i) => this.spawn(share ? { ms: share.ms, first: i, step: share.step } : null)));
+    const started = await Promise.allSettled(Array.from({ length: this.workers }, (_, i) =>
+      this.spawn(this.calibrateMs > 0 ? { ms: this.calibrateMs / this.workers, first: i, step: this.workers } : null)));
     const failed = started.find((s): s is PromiseRejectedResult => s.status === 'rejected');
     if (failed) {
       await this.close();
       throw failed.reason;
     }
-    const all = started.map((s) => (s as PromiseFulfilledResult<ThreadStarted>).value);
+    // each thread reports its own calibration; the pool's is their merge
+    const all = started.map((s) => (s as PromiseFulfilledResult<PoolStarted>).value);
     const parts = all.map((s) => s.calibration).filter((c): c is Calibration => c !== null);
     this.started = { knobsJson: all[0]!.knobsJson, calibration: parts.length > 0 ? mergeCalibrations(parts) : null };
   }
@@ -142,7 +140,7 @@ export class EmbeddedPool implements Transport {
   }
 
   /** Starts one thread and resolves when its physics is prepared (and calibrated, when asked). */
-  private async spawn(calibrate: { ms: number; first: number; step: number } | null = null): Promise<ThreadStarted> {
+  private async spawn(calibrate: { ms: number; first: number; step: number } | null = null): Promise<PoolStarted> {
     const work = this.work!;
     const entry = await threadEntry(this.physicsModule);
     if (this.closed) throw new TransportStartError('the pool closed while a thread was starting');

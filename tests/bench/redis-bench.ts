@@ -20,6 +20,7 @@ import { openClient, probeRedis, redisOptionsFromUrl } from '../../scheduler/red
 import { ledgerTag, liveWorkers } from '../../scheduler/redis/keys.js';
 import { RedisTransport } from '../../scheduler/redis/transport.js';
 import { cleanupPrefix, exited, waitFor } from '../redis/helpers.js';
+import { median } from './measure.js';
 
 const REPO = path.resolve(import.meta.dirname, '../..');
 const CHUNK = 1500;
@@ -78,7 +79,6 @@ const LAYOUTS: readonly { processes: number; concurrency: number }[] = [
   { processes: 1, concurrency: 2 },
 ];
 
-const median = (xs: number[]): number => [...xs].sort((a, b) => a - b)[Math.floor(xs.length / 2)]!;
 
 export async function benchRedis(): Promise<{ lines: string[] }> {
   const url = process.env.REDIS_URL || 'redis://127.0.0.1:6379';

@@ -15,7 +15,6 @@
  *  - `buildScanLedger`: a 1e6-point ledger written through the real writer, reusable by other
  *    benches (survivors, judge, plot). Its observables are invented smooth functions, not physics.
  */
-import { spawnSync } from 'node:child_process';
 import { mkdtempSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
 import Database from 'better-sqlite3';
 import { tmpdir } from 'node:os';
@@ -30,6 +29,7 @@ import { makePlan, parseSpec, resolvedSpecJson, specHash } from '../../scheduler
 import { PARAMETER_COLUMNS } from '../../scheduler/plan.js';
 import { numericObservableNames } from '../../physics/observables.js';
 import { CONSTANTS_EDITION } from '../../physics/constants.js';
+import { cliCpu, median } from './measure.js';
 
 /** The demo's physics setup on a smaller grid: 2 x 120 x 120 = 28800 points. */
 export const BENCH_SPEC = {
@@ -60,23 +60,6 @@ function sumEvalMs(file: string): number {
   } finally {
     db.close();
   }
-}
-
-const REPO = new URL('../..', import.meta.url);
-
-/**
- * `node bin/darksieve.mjs run ARGS` in a fresh process (embedded pool, REDIS_URL cleared): wall seconds
- * and the CPU seconds of the whole process, every thread, reported by the cpu-at-exit.mjs preload.
- */
-export function cliRunCpu(args: readonly string[], cwd = REPO): { wallS: number; cpuS: number } {
-  const t0 = performance.now();
-  const r = spawnSync(process.execPath, ['--import', new URL('./cpu-at-exit.mjs', import.meta.url).href, new URL('bin/darksieve.mjs', REPO).pathname, 'run', ...args], {
-    cwd, env: { ...process.env, REDIS_URL: '' }, encoding: 'utf8',
-  });
-  const wallS = (performance.now() - t0) / 1000;
-  const m = /cpu-at-exit-us (\d+)/.exec(r.stderr);
-  if (r.status !== 0 || !m) throw new Error(`darksieve run ${args.join(' ')} failed (exit ${r.status}): ${r.stderr}`);
-  return { wallS, cpuS: Number(m[1]) / 1e6 };
 }
 
 /** This thread's own CPU time, ms (Linux, 10 ms ticks). */
@@ -164,7 +147,6 @@ async function physicsOnly(specJson: string, total: number, threads: number): Pr
 
 const ROUNDS = 3;
 const LONG_ROUNDS = 2;
-const median = (xs: readonly number[]): number => [...xs].sort((a, b) => a - b)[Math.floor(xs.length / 2)]!;
 
 /** Synthetic columnar chunk results in a scan's layout (invented values). */
 function syntheticChunk(chunk: number, firstId: number, n: number, observables: readonly string[]): ChunkResult {
@@ -318,7 +300,7 @@ export async function benchScan(): Promise<{ lines: string[] }> {
     writeFileSync(longFile, JSON.stringify(longSpec));
     lines.push(...(await compareRuns(longFile, longSpec, [1, 2], LONG_ROUNDS)));
     const physics = await physicsOnly(resolvedSpecJson(spec), total, 1);
-    const cli = cliRunCpu([specFile, '--db', path.join(dir, 'cli-1.db'), '--workers', '1', '--quiet']);
+    const cli = cliCpu(['run', specFile, '--db', path.join(dir, 'cli-1.db'), '--workers', '1', '--quiet']);
     lines.push(
       `darksieve run through the CLI, fresh process, 1 worker: ${(total / cli.wallS).toFixed(0)} points/s end to end; ` +
         `CPU ${cli.cpuS.toFixed(1)} s vs ${physics.cpuS.toFixed(1)} s physics only (CPU overhead ${(100 * (cli.cpuS / physics.cpuS - 1)).toFixed(1)} %; target <= 5 %)`,

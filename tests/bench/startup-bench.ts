@@ -7,7 +7,6 @@
  *  - one embedded-pool worker thread from spawn to ready (physics loaded and prepared, no calibration).
  * The bundles are built before timing (a first use after a source change adds ~0.2 s once).
  */
-import { spawnSync } from 'node:child_process';
 import { mkdtempSync, rmSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import path from 'node:path';
@@ -16,21 +15,13 @@ import { EmbeddedPool } from '../../scheduler/embedded-pool.js';
 import { numericObservableNames } from '../../physics/observables.js';
 import { parseSpec, resolvedSpecJson } from '../../scheduler/spec.js';
 import { BENCH_SPEC } from './scan-bench.js';
+import { cliCpu, median } from './measure.js';
 
 const ROUNDS = 5;
-const REPO = new URL('../..', import.meta.url);
-const median = (xs: number[]): number => [...xs].sort((a, b) => a - b)[Math.floor(xs.length / 2)]!;
-
+/** `darksieve ARGS` in a fresh process, from the bundle or (DARKSIEVE_NO_BUNDLE) through tsx. */
 function cli(args: readonly string[], bundle: boolean, cwd: string): { wallS: number; cpuS: number } {
-  const env: NodeJS.ProcessEnv = { ...process.env, REDIS_URL: '' };
-  if (bundle) delete env.DARKSIEVE_NO_BUNDLE;
-  else env.DARKSIEVE_NO_BUNDLE = '1';
-  const t0 = performance.now();
-  const r = spawnSync(process.execPath, ['--import', new URL('./cpu-at-exit.mjs', import.meta.url).href, new URL('bin/darksieve.mjs', REPO).pathname, ...args], { cwd, env, encoding: 'utf8' });
-  const wallS = (performance.now() - t0) / 1000;
-  const m = /cpu-at-exit-us (\d+)/.exec(r.stderr);
-  if (r.status !== 0 || !m) throw new Error(`darksieve ${args.join(' ')} failed (exit ${r.status}): ${r.stderr}`);
-  return { wallS, cpuS: Number(m[1]) / 1e6 };
+  // an empty value is unset for bin/bundle-cache.mjs
+  return cliCpu(args, { cwd, env: { DARKSIEVE_NO_BUNDLE: bundle ? '' : '1' } });
 }
 
 async function threadReadyMs(bundle: boolean, specJson: string, observableNames: readonly string[]): Promise<number> {

@@ -323,6 +323,10 @@ describe('scatter planes', () => {
   });
 });
 
+/** The grid with synthetic SD cross sections rising with m_chi (mechanics only, not physics). */
+const withSdColumns = (rows: readonly Row[]): Row[] =>
+  rows.map((r) => ({ ...r, sigma_sd_p_cm2: 1e-41 * (r.m_chi! / 100), sigma_sd_n_cm2: 3e-41 * (r.m_chi! / 100) }));
+
 describe('curves whose verdict is not "below the line passes"', () => {
   it('draws an sd_limit_pair as its proton and neutron curves, with notes for the sum rule and a target-element SI curve', () => {
     const file = path.join(dir, 'sd-pair.db');
@@ -333,7 +337,7 @@ describe('curves whose verdict is not "below the line passes"', () => {
       { kind: 'sd_limit_pair', name: 'invented_sd', proton: 'invented-sd-p.csv', neutron: 'invented-sd-n.csv', outOfRange: 'pass', target: 'Xe' },
       { kind: 'limit_curve', name: 'invented_on_xe', observable: 'sigma_si_p_cm2', versus: 'm_chi', file: 'invented-limit.csv', outOfRange: 'pass', target: 'Xe' },
     ] } });
-    insertPoints(db, grid.map((r) => ({ ...r, sigma_sd_p_cm2: 1e-41 * (r.m_chi! / 100), sigma_sd_n_cm2: 3e-41 * (r.m_chi! / 100) })));
+    insertPoints(db, withSdColumns(grid));
     db.close();
     const view = LedgerView.open(file);
     try {
@@ -398,7 +402,7 @@ describe('judged sd_limit_pair', () => {
     fs.writeFileSync(nCsv, '# invented\nm_chi [GeV], sigma_sd_n [cm^2]\n10, 2e-41\n1000, 2e-40\n');
     createContractLedger(file, { constraints: [] }).close();
     const db = new Database(file);
-    insertPoints(db, grid.map((r) => ({ ...r, sigma_sd_p_cm2: 1e-41 * (r.m_chi! / 100), sigma_sd_n_cm2: 3e-41 * (r.m_chi! / 100) })));
+    insertPoints(db, withSdColumns(grid));
     const constraints = constraintsSchema.parse([
       { kind: 'sd_limit_pair', name: 'invented_pair', proton: pCsv, neutron: nCsv, outOfRange: 'pass', combine: 'separate' },
     ]);

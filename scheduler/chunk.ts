@@ -104,13 +104,18 @@ const GOLDEN_FRACTION = 0.6180339887498949;
 /**
  * Times real evaluations: after a short warm-up (first-call compilation), blocks of consecutive ids
  * spread over the scan, as chunks see them (per-scan caches fill as in a run), until the budget is
- * spent. About `budgetMs` of compute; the results are thrown away. Threads calibrating together take
- * interleaved rounds (`firstRound`, `roundStep`), so that between them they sample different ids.
+ * spent. About `budgetMs` of compute. Threads calibrating together take interleaved rounds
+ * (`firstRound`, `roundStep`), so that between them they sample different ids. The evaluated blocks
+ * are appended to `evaluated` when given (a run hands them back with the chunks that hold their ids,
+ * so that their points are not evaluated twice); otherwise they are thrown away.
  */
-export function calibrateEvaluator(evaluator: ChunkEvaluator, budgetMs: number, blocks = 6, blockSize = 8, firstRound = 0, roundStep = 1): Calibration {
+export function calibrateEvaluator(
+  evaluator: ChunkEvaluator, budgetMs: number, blocks = 6, blockSize = 8, firstRound = 0, roundStep = 1, evaluated?: ChunkResult[],
+): Calibration {
   const total = evaluator.totalPoints;
   const n = Math.min(blockSize, total);
-  evaluator.evaluate({ chunk: 0, firstId: 0, n: Math.min(3, total) });
+  const warmUp = evaluator.evaluate({ chunk: 0, firstId: 0, n: Math.min(3, total) });
+  evaluated?.push(warmUp);
   const times: number[] = [];
   let errors = 0;
   let ms = 0;
@@ -119,6 +124,7 @@ export function calibrateEvaluator(evaluator: ChunkEvaluator, budgetMs: number, 
     for (let b = 0; b < blocks && ms < budgetMs; b++) {
       const first = Math.min(total - n, Math.floor(((b + offset) * total) / blocks));
       const r = evaluator.evaluate({ chunk: 0, firstId: first, n });
+      evaluated?.push(r);
       ms += r.evalMs;
       times.push(r.evalMs);
       const flags = r.columns[r.columns.length - 1] as (string | null)[];
@@ -198,7 +204,12 @@ export class ChunkEvaluator {
     return this.plan.total;
   }
 
-  evaluate(range: ChunkRange): ChunkResult {
+  /**
+   * Evaluates a chunk's points in id order. Points held by `known` (earlier results of this scan's
+   * physics, e.g. calibration blocks, in ascending firstId order) are copied from them instead of being
+   * evaluated again: a point's row is a pure function of (spec, id), so the copy is the same bits.
+   */
+  evaluate(range: ChunkRange, known: readonly ChunkResult[] = []): ChunkResult {
     const started = performance.now();
     const { n, firstId } = range;
     const nParams = PARAMETER_COLUMNS.length;
@@ -206,8 +217,16 @@ export class ChunkEvaluator {
     const columns: Column[] = this.layout.kinds.map((k) => (k === 'real' ? new Float64Array(n) : new Array<string | null>(n).fill(null)));
     const params: ParamValue[] = new Array(nParams);
     const flags = columns[columns.length - 1] as (string | null)[];
+    let k = 0;
     for (let i = 0; i < n; i++) {
       const id = firstId + i;
+      while (k < known.length && known[k]!.firstId + known[k]!.n <= id) k++;
+      const held = known[k];
+      if (held && held.firstId <= id) {
+        const at = id - held.firstId;
+        for (let c = 0; c < columns.length; c++) (columns[c] as unknown[])[i] = (held.columns[c] as readonly unknown[])[at];
+        continue;
+      }
       const paramError = this.plan.paramsInto(id, params);
       for (let c = 0; c < nParams; c++) {
         const v = params[c];

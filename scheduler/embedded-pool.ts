@@ -31,7 +31,9 @@ export interface EmbeddedPoolOptions {
    * preparing (chunk.ts calibrateEvaluator, interleaved rounds, each thread warming its own compiled
    * code, which its first chunk would otherwise do), and open() makes their merged result available
    * as `started.calibration`; default 0. Sharing it keeps every thread busy until dispatch starts
-   * instead of leaving all but one idle while the first calibrates.
+   * instead of leaving all but one idle while the first calibrates. The calibrated points are not
+   * wasted: each chunk goes out with the calibrated blocks inside its range, which the thread copies
+   * instead of evaluating again.
    */
   readonly calibrateMs?: number;
 }
@@ -60,7 +62,7 @@ async function threadEntry(physicsModule: string | undefined): Promise<URL> {
 }
 
 type ThreadMessage =
-  | { type: 'ready'; observableNames: string[]; knobsJson: string; calibration: Calibration | null }
+  | { type: 'ready'; observableNames: string[]; knobsJson: string; calibration: Calibration | null; evaluated: ChunkResult[] }
   | { type: 'fatal'; error: string; issues?: Issue[] }
   | { type: 'result'; result: ChunkResult }
   | { type: 'error'; chunk: number; error: string };
@@ -91,6 +93,8 @@ export class EmbeddedPool implements Transport {
   private readonly queue: ChunkRange[] = [];
   private readonly attempts = new Map<number, number>();
   private readonly outcomes = new OutcomeQueue<ChunkOutcome>((o) => o);
+  /** points the threads evaluated while calibrating: disjoint blocks in ascending firstId order */
+  private known: ChunkResult[] = [];
   private closed = false;
 
   constructor(options: EmbeddedPoolOptions = {}) {
@@ -107,8 +111,9 @@ export class EmbeddedPool implements Transport {
   async open(work: ScanWork): Promise<void> {
     if (this.work) throw new Error('the pool is already open');
     this.work = work;
+    const evaluated: ChunkResult[] = [];
     const started = await Promise.allSettled(Array.from({ length: this.workers }, (_, i) =>
-      this.spawn(this.calibrateMs > 0 ? { ms: this.calibrateMs / this.workers, first: i, step: this.workers } : null)));
+      this.spawn(this.calibrateMs > 0 ? { ms: this.calibrateMs / this.workers, first: i, step: this.workers } : null, evaluated)));
     const failed = started.find((s): s is PromiseRejectedResult => s.status === 'rejected');
     if (failed) {
       await this.close();
@@ -118,6 +123,7 @@ export class EmbeddedPool implements Transport {
     const all = started.map((s) => (s as PromiseFulfilledResult<PoolStarted>).value);
     const parts = all.map((s) => s.calibration).filter((c): c is Calibration => c !== null);
     this.started = { knobsJson: all[0]!.knobsJson, calibration: parts.length > 0 ? mergeCalibrations(parts) : null };
+    this.known = disjointBlocks(evaluated);
   }
 
   dispatch(range: ChunkRange): void {
@@ -139,8 +145,11 @@ export class EmbeddedPool implements Transport {
     await Promise.all(all.map((s) => s.worker.terminate()));
   }
 
-  /** Starts one thread and resolves when its physics is prepared (and calibrated, when asked). */
-  private async spawn(calibrate: { ms: number; first: number; step: number } | null = null): Promise<PoolStarted> {
+  /**
+   * Starts one thread and resolves when its physics is prepared (and calibrated, when asked; the
+   * calibrated blocks are appended to `evaluated`).
+   */
+  private async spawn(calibrate: { ms: number; first: number; step: number } | null = null, evaluated: ChunkResult[] = []): Promise<PoolStarted> {
     const work = this.work!;
     const entry = await threadEntry(this.physicsModule);
     if (this.closed) throw new TransportStartError('the pool closed while a thread was starting');
@@ -162,6 +171,7 @@ export class EmbeddedPool implements Transport {
             return;
           }
           ready = true;
+          evaluated.push(...msg.evaluated);
           this.slots.add(slot);
           resolve({ knobsJson: msg.knobsJson, calibration: msg.calibration });
           this.feed();
@@ -235,12 +245,44 @@ export class EmbeddedPool implements Transport {
       if (!target) return;
       const range = this.queue.shift()!;
       target.posted.push(range);
-      target.worker.postMessage({ type: 'chunk', range });
+      target.worker.postMessage({ type: 'chunk', range, known: this.knownWithin(range) });
     }
+  }
+
+  /** The calibrated blocks that hold ids of `range` (one may start before it or end after it). */
+  private knownWithin(range: ChunkRange): ChunkResult[] {
+    const end = range.firstId + range.n;
+    // the first block ending after the range's first id, by bisection
+    let lo = 0;
+    let hi = this.known.length;
+    while (lo < hi) {
+      const mid = (lo + hi) >>> 1;
+      const b = this.known[mid]!;
+      if (b.firstId + b.n <= range.firstId) lo = mid + 1;
+      else hi = mid;
+    }
+    const out: ChunkResult[] = [];
+    for (let k = lo; k < this.known.length && this.known[k]!.firstId < end; k++) out.push(this.known[k]!);
+    return out;
   }
 
   private deliver(outcome: ChunkOutcome): void {
     if (this.closed) return;
     this.outcomes.put(outcome);
   }
+}
+
+/**
+ * Evaluated blocks as disjoint blocks in ascending firstId order (threads calibrating a small scan
+ * sample the same ids more than once; a block overlapping one already kept is dropped).
+ */
+export function disjointBlocks(blocks: readonly ChunkResult[]): ChunkResult[] {
+  const out: ChunkResult[] = [];
+  let end = -Infinity;
+  for (const b of [...blocks].sort((x, y) => x.firstId - y.firstId || y.n - x.n)) {
+    if (b.n === 0 || b.firstId < end) continue;
+    out.push(b);
+    end = b.firstId + b.n;
+  }
+  return out;
 }

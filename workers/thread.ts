@@ -1,18 +1,19 @@
 /**
  * Worker thread of the embedded pool: prepares the scan's physics once (and, when asked, times a
- * calibration of the cost per point, which also warms this thread's compiled code), then evaluates
- * the chunks the pool sends and posts columnar results back. The typed arrays are copied, not
+ * calibration of the cost per point, which also warms this thread's compiled code; the calibrated
+ * blocks go back with 'ready' so that the pool can hand them out with the chunks that hold their ids),
+ * then evaluates the chunks the pool sends and posts columnar results back. The typed arrays are copied, not
  * transferred: a chunk's columns are a few hundred kB (well under a millisecond to copy), while
  * transferring them made this thread's next chunks ~8 % slower to evaluate (thread CPU per 1500-point
  * chunk, medians of 8 alternating trials: 417 ms transferred, 382 ms copied).
  *
- * Messages in:  { type: 'chunk', range }
- * Messages out: { type: 'ready', observableNames, knobsJson, calibration } | { type: 'fatal', error, issues? }
+ * Messages in:  { type: 'chunk', range, known }   (known: evaluated blocks within the range, by firstId)
+ * Messages out: { type: 'ready', observableNames, knobsJson, calibration, evaluated } | { type: 'fatal', error, issues? }
  *               { type: 'result', result } | { type: 'error', chunk, error }
  * `issues` comes with a fatal error when prepare() refused the scan's setup (bad input, not a crash).
  */
 import { parentPort, workerData } from 'node:worker_threads';
-import { ChunkEvaluator, calibrateEvaluator, loadPhysicsEngine, setupIssues, type PhysicsEngine } from '../scheduler/chunk.js';
+import { ChunkEvaluator, calibrateEvaluator, loadPhysicsEngine, setupIssues, type ChunkResult, type PhysicsEngine } from '../scheduler/chunk.js';
 import type { ChunkRange } from '../scheduler/plan.js';
 
 interface ThreadData {
@@ -44,17 +45,18 @@ try {
 }
 try {
   const rounds = data.calibrateRounds ?? { first: 0, step: 1 };
-  const calibration = data.calibrateMs ? calibrateEvaluator(evaluator, data.calibrateMs, undefined, undefined, rounds.first, rounds.step) : null;
-  port.postMessage({ type: 'ready', observableNames: evaluator.prepared.observableNames, knobsJson: JSON.stringify(evaluator.prepared.knobs ?? {}), calibration });
+  const evaluated: ChunkResult[] = [];
+  const calibration = data.calibrateMs ? calibrateEvaluator(evaluator, data.calibrateMs, undefined, undefined, rounds.first, rounds.step, evaluated) : null;
+  port.postMessage({ type: 'ready', observableNames: evaluator.prepared.observableNames, knobsJson: JSON.stringify(evaluator.prepared.knobs ?? {}), calibration, evaluated });
 } catch (err) {
   port.postMessage({ type: 'fatal', error: describe(err) });
   process.exit(1);
 }
 
-port.on('message', (msg: { type: 'chunk'; range: ChunkRange }) => {
+port.on('message', (msg: { type: 'chunk'; range: ChunkRange; known?: ChunkResult[] }) => {
   if (msg.type !== 'chunk') return;
   try {
-    const result = evaluator.evaluate(msg.range);
+    const result = evaluator.evaluate(msg.range, msg.known);
     port.postMessage({ type: 'result', result });
   } catch (err) {
     port.postMessage({ type: 'error', chunk: msg.range.chunk, error: describe(err) });

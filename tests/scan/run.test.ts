@@ -15,7 +15,7 @@ import { tmpdir } from 'node:os';
 import { pathToFileURL } from 'node:url';
 import { CALIBRATION_ROUNDS, calibrateEvaluator, estimateRunSeconds, mergeCalibrations } from '../../scheduler/chunk.js';
 import { redactRedisUrl } from '../../scheduler/redis/connection.js';
-import { FAKE_PHYSICS, pointRows, query, tempDir, writeSpec } from './helpers.js';
+import { FAKE_PHYSICS, bits, pointRows, query, tempDir, writeSpec } from './helpers.js';
 
 const CRASH_PHYSICS = new URL('./crash-physics.ts', import.meta.url).href;
 const OTHER_KNOBS_PHYSICS = new URL('./other-knobs-physics.ts', import.meta.url).href;
@@ -247,6 +247,65 @@ describe('calibration shared by the threads', () => {
       // every round of 6 blocks of 8 points once, half of them in each of the 2 threads
       expect(c.points).toBe(CALIBRATION_ROUNDS * 6 * 8);
       expect(c.msPerPoint).toBeGreaterThan(0);
+    } finally {
+      await pool.close();
+    }
+  });
+});
+
+describe('calibrated points handed back with their chunks', () => {
+  const SLOW_PHYSICS = new URL('./slow-physics.ts', import.meta.url).href;
+  const evaluatorFor = async (physics: string) => {
+    const { ChunkEvaluator, loadPhysicsEngine } = await import('../../scheduler/chunk.js');
+    const { parseSpec, resolvedSpecJson } = await import('../../scheduler/spec.js');
+    return ChunkEvaluator.create(resolvedSpecJson(parseSpec(JSON.parse(readFileSync(specFile, 'utf8'))).spec!), await loadPhysicsEngine(physics));
+  };
+  const columnBits = (r: { columns: readonly (Float64Array | (string | null)[])[] }): string[][] =>
+    r.columns.map((c) => Array.from(c as ArrayLike<number | string | null>, (v) => (typeof v === 'number' ? bits(v) : String(v))));
+
+  it('a chunk copies the known points inside it (blocks straddling its ends too) and evaluates the rest, bit for bit', async () => {
+    const ev = await evaluatorFor(FAKE_PHYSICS);
+    const fresh = ev.evaluate({ chunk: 3, firstId: 40, n: 60 });
+    // blocks across the first id, inside, and across the end; ids 96..103 include g_q = 1 (flagged errors)
+    const known = [{ chunk: 0, firstId: 36, n: 8 }, { chunk: 0, firstId: 60, n: 5 }, { chunk: 0, firstId: 96, n: 8 }].map((r) => ev.evaluate(r));
+    const reused = ev.evaluate({ chunk: 3, firstId: 40, n: 60 }, known);
+    expect(columnBits(reused)).toEqual(columnBits(fresh));
+    expect(fresh.columns.at(-1)!.some((f) => typeof f === 'string' && f.startsWith('error='))).toBe(true);
+    // the copies come from the blocks: a value marked in a block shows up in the chunk
+    const marked = known.map((b) => ({ ...b, columns: b.columns.map((c) => (c instanceof Float64Array ? Float64Array.from(c) : [...c])) }));
+    (marked[1]!.columns[0] as Float64Array)[2] = -12345;
+    expect((ev.evaluate({ chunk: 3, firstId: 40, n: 60 }, marked).columns[0] as Float64Array)[62 - 40]).toBe(-12345);
+  });
+
+  it('overlapping calibration blocks become disjoint blocks in id order', async () => {
+    const { disjointBlocks } = await import('../../scheduler/embedded-pool.js');
+    const block = (firstId: number, n: number) => ({ chunk: 0, firstId, n, columns: [], evalMs: 0 });
+    // common practice, no source: a sweep in firstId order keeping blocks that start at or after the last end
+    const kept = disjointBlocks([block(50, 8), block(0, 3), block(2, 8), block(10, 8), block(50, 8), block(12, 0), block(17, 8)]);
+    expect(kept.map((b) => [b.firstId, b.n])).toEqual([[0, 3], [10, 8], [50, 8]]);
+  });
+
+  it('the pool sends calibrated blocks with the chunk that holds them: the thread does not evaluate them again', async () => {
+    const { EmbeddedPool } = await import('../../scheduler/embedded-pool.js');
+    const { SLOW_MS_PER_POINT } = await import('./slow-physics.js');
+    const { parseSpec, resolvedSpecJson } = await import('../../scheduler/spec.js');
+    const { numericObservableNames } = await import('../../physics/observables.js');
+    const json = resolvedSpecJson(parseSpec(JSON.parse(readFileSync(specFile, 'utf8'))).spec!);
+    const pool = new EmbeddedPool({ workers: 1, physicsModule: SLOW_PHYSICS, calibrateMs: 1 });
+    try {
+      await pool.open({ scanKey: 'known', resolvedSpecJson: json, observableNames: numericObservableNames(['xe_fake'], []) });
+      // the warm-up block (ids 0..2) and the first block timed are known; the slow physics sleeps
+      // SLOW_MS_PER_POINT per point it evaluates, so evaluating even these 3 points would take 3 times that
+      pool.dispatch({ chunk: 0, firstId: 0, n: 3 });
+      const o = await pool.next();
+      if (o.kind !== 'result') throw new Error(o.error);
+      expect(o.result.evalMs).toBeLessThan(3 * SLOW_MS_PER_POINT);
+      expect(columnBits(o.result)).toEqual(columnBits((await evaluatorFor(FAKE_PHYSICS)).evaluate({ chunk: 0, firstId: 0, n: 3 })));
+      // a range nobody calibrated is evaluated
+      pool.dispatch({ chunk: 1, firstId: 117, n: 3 });
+      const late = await pool.next();
+      if (late.kind !== 'result') throw new Error(late.error);
+      expect(late.result.evalMs).toBeGreaterThanOrEqual(3 * SLOW_MS_PER_POINT - 1);
     } finally {
       await pool.close();
     }

@@ -15,6 +15,7 @@ import { Worker } from 'node:worker_threads';
 import { mergeCalibrations, type Calibration, type ChunkResult } from './chunk.js';
 import { InvalidInputError, type Issue } from '../physics/issue.js';
 import { OutcomeQueue } from './outcome-queue.js';
+import { ChunkTickets } from './chunk-tickets.js';
 import { bundledEntry } from '../bin/bundle-cache.mjs';
 import type { ChunkRange } from './plan.js';
 import { TransportStartError, type ChunkOutcome, type ScanWork, type Transport } from './transport.js';
@@ -64,13 +65,21 @@ async function threadEntry(physicsModule: string | undefined): Promise<URL> {
 type ThreadMessage =
   | { type: 'ready'; observableNames: string[]; knobsJson: string; calibration: Calibration | null; evaluated: ChunkResult[] }
   | { type: 'fatal'; error: string; issues?: Issue[] }
-  | { type: 'result'; result: ChunkResult }
-  | { type: 'error'; chunk: number; error: string };
+  | { type: 'result'; result: ChunkResult; ticket: number }
+  | { type: 'error'; chunk: number; error: string; ticket: number }
+  | { type: 'skipped'; chunk: number; ticket: number };
+
+interface Posted {
+  readonly range: ChunkRange;
+  readonly ticket: number;
+}
 
 interface Slot {
   worker: Worker;
   /** chunks posted to this thread, in the order it evaluates them (at most PER_THREAD) */
-  posted: ChunkRange[];
+  posted: Posted[];
+  /** tickets of chunks taken back from this thread, until it answers 'skipped' */
+  withdrawn: Set<number>;
 }
 
 /**
@@ -95,6 +104,7 @@ export class EmbeddedPool implements Transport {
   private readonly outcomes = new OutcomeQueue<ChunkOutcome>((o) => o);
   /** points the threads evaluated while calibrating: disjoint blocks in ascending firstId order */
   private known: ChunkResult[] = [];
+  private readonly tickets: ChunkTickets;
   private closed = false;
 
   constructor(options: EmbeddedPoolOptions = {}) {
@@ -106,6 +116,8 @@ export class EmbeddedPool implements Transport {
     this.description = `embedded pool, ${this.workers} worker thread${this.workers === 1 ? '' : 's'}`;
     // every thread holds PER_THREAD chunks, plus one more each waiting here
     this.window = (PER_THREAD + 1) * this.workers;
+    // posted chunks plus withdrawn ones not yet answered stay below 2 PER_THREAD per thread
+    this.tickets = new ChunkTickets(2 * PER_THREAD * this.workers + 8);
   }
 
   async open(work: ScanWork): Promise<void> {
@@ -156,11 +168,11 @@ export class EmbeddedPool implements Transport {
     return new Promise((resolve, reject) => {
       const worker = new Worker(entry, {
         workerData: {
-          resolvedSpecJson: work.resolvedSpecJson, physicsModule: this.physicsModule,
+          resolvedSpecJson: work.resolvedSpecJson, physicsModule: this.physicsModule, tickets: this.tickets.buffer,
           calibrateMs: calibrate?.ms ?? 0, calibrateRounds: calibrate ? { first: calibrate.first, step: calibrate.step } : undefined,
         },
       });
-      const slot: Slot = { worker, posted: [] };
+      const slot: Slot = { worker, posted: [], withdrawn: new Set() };
       let ready = false;
       worker.on('message', (msg: ThreadMessage) => {
         if (msg.type === 'ready') {
@@ -179,13 +191,16 @@ export class EmbeddedPool implements Transport {
           // a setup the physics refuses is bad input (exit 2), anything else a start failure
           reject(msg.issues ? new InvalidInputError(msg.issues) : new TransportStartError(`a worker thread could not prepare the scan: ${msg.error}`));
         } else if (msg.type === 'result') {
-          this.unpost(slot, msg.result.chunk);
+          this.unpost(slot, msg.result.chunk, msg.ticket);
           this.attempts.delete(msg.result.chunk);
           this.deliver({ kind: 'result', result: msg.result });
           this.feed();
-        } else {
-          this.retryOrFail(this.unpost(slot, msg.chunk), msg.error);
+        } else if (msg.type === 'error') {
+          this.retryOrFail(this.unpost(slot, msg.chunk, msg.ticket), msg.error);
           this.feed();
+        } else {
+          slot.withdrawn.delete(msg.ticket);
+          this.tickets.release(msg.ticket);
         }
       });
       worker.on('error', (err) => {
@@ -203,7 +218,11 @@ export class EmbeddedPool implements Transport {
   private lose(slot: Slot, reason: string): void {
     if (this.closed || !this.slots.delete(slot)) return;
     // the thread was evaluating the first of its chunks; the others had not started
-    const [running, ...waiting] = slot.posted.splice(0);
+    const posted = slot.posted.splice(0);
+    for (const p of posted) this.tickets.release(p.ticket);
+    for (const t of slot.withdrawn) this.tickets.release(t);
+    slot.withdrawn.clear();
+    const [running, ...waiting] = posted.map((p) => p.range);
     this.queue.unshift(...waiting);
     if (running) this.retryOrFail(running, reason);
     this.spawn().catch((err: Error) => {
@@ -213,11 +232,12 @@ export class EmbeddedPool implements Transport {
     });
   }
 
-  /** Removes a finished chunk from its thread's list (threads answer in the order they were posted). */
-  private unpost(slot: Slot, chunk: number): ChunkRange {
-    const i = slot.posted.findIndex((r) => r.chunk === chunk);
+  /** Removes a finished chunk from its thread's list and frees its ticket. */
+  private unpost(slot: Slot, chunk: number, ticket: number): ChunkRange {
+    const i = slot.posted.findIndex((p) => p.range.chunk === chunk && p.ticket === ticket);
     if (i < 0) throw new Error(`a worker thread answered for chunk ${chunk}, which it was not given`);
-    return slot.posted.splice(i, 1)[0]!;
+    this.tickets.release(ticket);
+    return slot.posted.splice(i, 1)[0]!.range;
   }
 
   private retryOrFail(range: ChunkRange, error: string): void {
@@ -232,8 +252,10 @@ export class EmbeddedPool implements Transport {
   }
 
   /**
-   * Hands queued chunks to the threads, one at a time to the thread with the fewest in hand, so the
-   * last chunks of a scan never wait behind a busy thread while another thread is idle.
+   * Hands queued chunks to the threads, one at a time to the thread with the fewest in hand. When
+   * nothing is queued and a thread is idle (the end of a scan), it takes back a chunk still waiting
+   * behind another thread's running one and gives it to the idle thread, so that the last chunks never
+   * wait behind a busy thread while another idles.
    */
   private feed(): void {
     if (this.closed) return;
@@ -243,10 +265,26 @@ export class EmbeddedPool implements Transport {
         if (slot.posted.length < PER_THREAD && (!target || slot.posted.length < target.posted.length)) target = slot;
       }
       if (!target) return;
-      const range = this.queue.shift()!;
-      target.posted.push(range);
-      target.worker.postMessage({ type: 'chunk', range, known: this.knownWithin(range) });
+      this.post(target, this.queue.shift()!);
     }
+    for (const idle of this.slots) {
+      if (idle.posted.length > 0) continue;
+      let victim: Slot | undefined;
+      for (const slot of this.slots) if (slot.posted.length >= 2 && (!victim || slot.posted.length > victim.posted.length)) victim = slot;
+      if (!victim) return;
+      // the last one posted: the first may already be running
+      const last = victim.posted[victim.posted.length - 1]!;
+      if (!this.tickets.withdraw(last.ticket)) continue;
+      victim.posted.pop();
+      victim.withdrawn.add(last.ticket);
+      this.post(idle, last.range);
+    }
+  }
+
+  private post(slot: Slot, range: ChunkRange): void {
+    const ticket = this.tickets.issue();
+    slot.posted.push({ range, ticket });
+    slot.worker.postMessage({ type: 'chunk', range, known: this.knownWithin(range), ticket });
   }
 
   /** The calibrated blocks that hold ids of `range` (one may start before it or end after it). */

@@ -136,10 +136,17 @@ export function compileSpecConstraints(spec: ScanSpec, specPath: string): Compil
   return compiled;
 }
 
-/** Chunk size giving about CHUNK_TARGET_MS per chunk, and at least 4 chunks per worker when possible. */
+/**
+ * Chunks per worker at least, when the scan is short: at the end of a scan a thread idles while
+ * another finishes its last chunk (the pool hands over chunks that have not started, not a running
+ * one), so the last chunks must be short next to the whole.
+ */
+export const MIN_CHUNKS_PER_WORKER = 8;
+
+/** Chunk size giving about CHUNK_TARGET_MS per chunk, and at least MIN_CHUNKS_PER_WORKER chunks per worker when possible. */
 export function chooseChunkSize(msPerPoint: number, totalPoints: number, workers: number): number {
   const byTime = Math.round(CHUNK_TARGET_MS / Math.max(msPerPoint, 1e-3));
-  const bySpread = Math.ceil(totalPoints / (4 * workers));
+  const bySpread = Math.ceil(totalPoints / (MIN_CHUNKS_PER_WORKER * workers));
   return Math.max(MIN_CHUNK, Math.min(MAX_CHUNK, byTime, bySpread));
 }
 

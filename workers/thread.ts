@@ -7,14 +7,17 @@
  * transferring them made this thread's next chunks ~8 % slower to evaluate (thread CPU per 1500-point
  * chunk, medians of 8 alternating trials: 417 ms transferred, 382 ms copied).
  *
- * Messages in:  { type: 'chunk', range, known }   (known: evaluated blocks within the range, by firstId)
+ * Messages in:  { type: 'chunk', range, known, ticket }   (known: evaluated blocks within the range,
+ *               by firstId; ticket: the chunk's cell in workerData.tickets, scheduler/chunk-tickets.ts)
  * Messages out: { type: 'ready', observableNames, knobsJson, calibration, evaluated } | { type: 'fatal', error, issues? }
- *               { type: 'result', result } | { type: 'error', chunk, error }
+ *               { type: 'result', result, ticket } | { type: 'error', chunk, error, ticket }
+ *               { type: 'skipped', chunk, ticket }   (the pool took the chunk back before it started)
  * `issues` comes with a fatal error when prepare() refused the scan's setup (bad input, not a crash).
  */
 import { parentPort, workerData } from 'node:worker_threads';
 import { ChunkEvaluator, calibrateEvaluator, loadPhysicsEngine, setupIssues, type ChunkResult, type PhysicsEngine } from '../scheduler/chunk.js';
 import type { ChunkRange } from '../scheduler/plan.js';
+import { claimTicket } from '../scheduler/chunk-tickets.js';
 
 interface ThreadData {
   readonly resolvedSpecJson: string;
@@ -23,6 +26,8 @@ interface ThreadData {
   readonly calibrateMs?: number;
   /** which calibration rounds this thread takes: firstRound, firstRound + roundStep, ... */
   readonly calibrateRounds?: { readonly first: number; readonly step: number };
+  /** the pool's chunk tickets (Int32 cells) */
+  readonly tickets: SharedArrayBuffer;
 }
 
 const port = parentPort!;
@@ -53,12 +58,17 @@ try {
   process.exit(1);
 }
 
-port.on('message', (msg: { type: 'chunk'; range: ChunkRange; known?: ChunkResult[] }) => {
+const tickets = new Int32Array(data.tickets);
+port.on('message', (msg: { type: 'chunk'; range: ChunkRange; known: ChunkResult[]; ticket: number }) => {
   if (msg.type !== 'chunk') return;
+  if (!claimTicket(tickets, msg.ticket)) {
+    port.postMessage({ type: 'skipped', chunk: msg.range.chunk, ticket: msg.ticket });
+    return;
+  }
   try {
     const result = evaluator.evaluate(msg.range, msg.known);
-    port.postMessage({ type: 'result', result });
+    port.postMessage({ type: 'result', result, ticket: msg.ticket });
   } catch (err) {
-    port.postMessage({ type: 'error', chunk: msg.range.chunk, error: describe(err) });
+    port.postMessage({ type: 'error', chunk: msg.range.chunk, error: describe(err), ticket: msg.ticket });
   }
 });

@@ -121,9 +121,9 @@ describe('run on the embedded pool', () => {
 
   it('without --chunk a new scan takes its chunk size from the threads\' calibration; results unchanged', async () => {
     const db = path.join(tmp.dir, 'calibrated.db');
-    const s = await run({ dbPath: db, chunkSize: undefined });
-    // the stand-in physics is fast (far below 1.5 s per chunk): the spread sets the size, 4 chunks per worker
-    expect(query<{ chunk_size: number }>(db, 'SELECT chunk_size FROM scans')[0]!.chunk_size).toBe(TOTAL / (4 * 2));
+    const s = await run({ dbPath: db, chunkSize: undefined, workers: 1 });
+    // the stand-in physics is fast (far below 1.5 s per chunk): the spread sets the size, 8 chunks per worker
+    expect(query<{ chunk_size: number }>(db, 'SELECT chunk_size FROM scans')[0]!.chunk_size).toBe(TOTAL / 8);
     expect(s.status).toBe('done');
     expect(pointRows(db)).toEqual(reference);
   });

@@ -6,6 +6,13 @@ const REPO = new URL('../..', import.meta.url);
 /** The middle value (the larger middle one for an even count). */
 export const median = (xs: readonly number[]): number => [...xs].sort((a, b) => a - b)[Math.floor(xs.length / 2)]!;
 
+/** Lower quartile, median and upper quartile (nearest rank; common practice, no source). */
+export function quartiles(xs: readonly number[]): [number, number, number] {
+  const s = [...xs].sort((a, b) => a - b);
+  const at = (q: number): number => s[Math.min(s.length - 1, Math.max(0, Math.ceil(q * s.length) - 1))]!;
+  return [at(0.25), median(xs), at(0.75)];
+}
+
 /**
  * `node bin/darksieve.mjs ARGS` in a fresh process (REDIS_URL cleared, so `run` uses the embedded
  * pool; `env` adds or overrides variables): wall seconds and the CPU seconds of the whole process,

@@ -2,10 +2,10 @@
  * Speed of the scan engine (`npm run bench -- scan`):
  *  - physics only: 1 or 2 fresh bare worker threads evaluating all of a scan's points (no pool, no
  *    scheduler, no ledger), against `run` end to end on the embedded pool with as many workers over
- *    the same points (target: overhead <= 5 %), alternating, medians of ROUNDS; both sides pay cold
- *    compiled code and caches, and with 2 threads on a 2-core machine both share the same contention;
- *    again on a 4x longer scan (LONG_ROUNDS), to tell the fixed start-up from a cost per point
- *    (medians of an even count are the larger middle value);
+ *    the same points (target: overhead <= 5 %), alternating, medians and quartiles of the per-round
+ *    ratios over ROUNDS; both sides pay cold compiled code and caches, and with 2 threads on a 2-core
+ *    machine both share the same contention; again on a 4x longer scan (LONG_ROUNDS), to tell the
+ *    fixed start-up from a cost per point;
  *  - `darksieve run` through the CLI in a fresh process on 1 worker, as users run it (the in-process
  *    runs above share this process's already loaded modules): CPU of the whole process, all threads;
  *  - threads: CPU per chunk in the pool and in bare worker threads (no pool, no scheduler) with 1 and 2
@@ -29,7 +29,7 @@ import { makePlan, parseSpec, resolvedSpecJson, specHash } from '../../scheduler
 import { PARAMETER_COLUMNS } from '../../scheduler/plan.js';
 import { numericObservableNames } from '../../physics/observables.js';
 import { CONSTANTS_EDITION } from '../../physics/constants.js';
-import { cliCpu, median } from './measure.js';
+import { cliCpu, median, quartiles } from './measure.js';
 
 /** The demo's physics setup on a smaller grid: 2 x 120 x 120 = 28800 points. */
 export const BENCH_SPEC = {
@@ -122,11 +122,13 @@ export async function benchThreads(specJson: string, observables: readonly strin
  * Physics only: wall seconds for `threads` fresh worker threads (bare, no pool, no scheduler, no
  * ledger; compiled code and per-scan caches cold, as in a run's threads) to evaluate every point of
  * the scan, 1000-point ranges dealt round-robin, timed from 'go' after each has loaded and prepared
- * the physics. Also the CPU seconds of this process meanwhile (all threads).
+ * the physics (`wallS`); `startS` is the time from creating the threads until all had done so. Also
+ * the CPU seconds of this process from 'go' (all threads).
  */
-async function physicsOnly(specJson: string, total: number, threads: number): Promise<{ wallS: number; cpuS: number }> {
+async function physicsOnly(specJson: string, total: number, threads: number): Promise<{ wallS: number; startS: number; cpuS: number }> {
   const size = 1000;
   const ranges: ChunkRange[] = Array.from({ length: Math.ceil(total / size) }, (_, c) => ({ chunk: c, firstId: c * size, n: Math.min(size, total - c * size) }));
+  const created = performance.now();
   const workers = Array.from({ length: threads }, (_, k) => new Worker(new URL('./bare-thread.mjs', import.meta.url), {
     workerData: { resolvedSpecJson: specJson, warmUp: false, ranges: ranges.filter((_, i) => i % threads === k) },
   }));
@@ -139,14 +141,15 @@ async function physicsOnly(specJson: string, total: number, threads: number): Pr
       w.postMessage('go');
       return done;
     }));
-    return { wallS: (performance.now() - t0) / 1000, cpuS: cpuSeconds(c0) };
+    return { wallS: (performance.now() - t0) / 1000, startS: (t0 - created) / 1000, cpuS: cpuSeconds(c0) };
   } finally {
     await Promise.all(workers.map((w) => w.terminate()));
   }
 }
 
-const ROUNDS = 3;
-const LONG_ROUNDS = 2;
+/** Rounds of the comparisons: single runs differ by up to ±15 % on these machines, so many of them. */
+const ROUNDS = 9;
+const LONG_ROUNDS = 5;
 
 /** Synthetic columnar chunk results in a scan's layout (invented values). */
 function syntheticChunk(chunk: number, firstId: number, n: number, observables: readonly string[]): ChunkResult {
@@ -245,41 +248,58 @@ export async function benchIngest(): Promise<{ lines: string[] }> {
 }
 
 /**
- * Physics only against `run` end to end on the same scan, alternating `rounds` times so that both see
- * the same machine load, for each worker count; lines with medians and the per-round ratios.
+ * Physics only against `run` end to end on the same scan, alternating `rounds` times (and which goes
+ * first) so that both see the same machine load, for each worker count. The overhead is the median of
+ * the per-round ratios run / physics only, with their quartiles; physics only is timed from 'go'
+ * (threads loaded and prepared: the strict yardstick) and, second, from creating its threads (loading
+ * and preparing the physics included, which any evaluation of the points must do too).
  */
 async function compareRuns(specFile: string, specInput: unknown, workerCounts: readonly number[], rounds: number): Promise<string[]> {
   const lines: string[] = [];
   const spec = parseSpec(specInput).spec!;
   const total = makePlan(spec, 1).total;
   const dir = path.dirname(specFile);
+  const pct = (q: readonly number[]): string => q.map((x) => (100 * (x - 1)).toFixed(1)).join(' / ');
   for (const workers of workerCounts) {
-    const rows: { physics: { wallS: number; cpuS: number }; wallS: number; cpuS: number; computeS: number; evalS: number }[] = [];
+    const rows: { physics: { wallS: number; startS: number; cpuS: number }; wallS: number; cpuS: number; computeS: number; evalS: number }[] = [];
     for (let round = 0; round < rounds; round++) {
-      const physics = await physicsOnly(resolvedSpecJson(spec), total, workers);
-      const db = path.join(dir, `run-${spec.name}-${workers}-${round}.db`);
-      const c0 = process.cpuUsage();
-      const t0 = performance.now();
-      const s = await runScan({ specPath: specFile, dbPath: db, workers, quiet: true, log: silent });
-      if (s.pointsThisRun !== total) throw new Error(`run stored ${s.pointsThisRun} of ${total} points`);
-      rows.push({ physics, wallS: (performance.now() - t0) / 1000, cpuS: cpuSeconds(c0), computeS: s.computeMs / 1000, evalS: sumEvalMs(db) / 1000 });
-      rmSync(db, { force: true });
+      const runOnce = async (): Promise<Omit<(typeof rows)[number], 'physics'>> => {
+        const db = path.join(dir, `run-${spec.name}-${workers}-${round}.db`);
+        const c0 = process.cpuUsage();
+        const t0 = performance.now();
+        const s = await runScan({ specPath: specFile, dbPath: db, workers, quiet: true, log: silent });
+        const wallS = (performance.now() - t0) / 1000;
+        const cpuS = cpuSeconds(c0);
+        if (s.pointsThisRun !== total) throw new Error(`run stored ${s.pointsThisRun} of ${total} points`);
+        const evalS = sumEvalMs(db) / 1000;
+        rmSync(db, { force: true });
+        return { wallS, cpuS, computeS: s.computeMs / 1000, evalS };
+      };
+      if (round % 2 === 0) {
+        const physics = await physicsOnly(resolvedSpecJson(spec), total, workers);
+        rows.push({ physics, ...(await runOnce()) });
+      } else {
+        const run = await runOnce();
+        rows.push({ physics: await physicsOnly(resolvedSpecJson(spec), total, workers), ...run });
+      }
     }
     const m = (f: (r: (typeof rows)[number]) => number): number => median(rows.map(f));
+    const q = (f: (r: (typeof rows)[number]) => number): [number, number, number] => quartiles(rows.map(f));
     const plural = workers > 1 ? 's' : '';
     lines.push(
-      `${total} points, physics only, ${workers} fresh thread${plural}: ${m((r) => r.physics.wallS).toFixed(2)} s wall (${(total / m((r) => r.physics.wallS)).toFixed(0)} points/s), ` +
-        `${(1000 * m((r) => r.physics.cpuS) / total).toFixed(2)} ms CPU per point`,
+      `${total} points, physics only, ${workers} fresh thread${plural}: ${m((r) => r.physics.wallS).toFixed(2)} s wall (${(total / m((r) => r.physics.wallS)).toFixed(0)} points/s) ` +
+        `after ${m((r) => r.physics.startS).toFixed(2)} s loading and preparing, ${(1000 * m((r) => r.physics.cpuS) / total).toFixed(2)} ms CPU per point`,
     );
     lines.push(
-      `  run, ${workers} worker${plural}, end to end (validation, thread start, calibration, ledger, judging): ${m((r) => r.wallS).toFixed(2)} s wall, ` +
-        `overhead ${(100 * (m((r) => r.wallS / r.physics.wallS) - 1)).toFixed(1)} % (target <= 5 %); ` +
-        `once the workers are ready ${(100 * (m((r) => r.computeS / r.physics.wallS) - 1)).toFixed(1)} %; start-up and closing ${m((r) => r.wallS - r.computeS).toFixed(2)} s; ` +
-        `CPU overhead ${(100 * (m((r) => r.cpuS / r.physics.cpuS) - 1)).toFixed(1)} % (median of ${rounds} alternating round${rounds > 1 ? 's' : ''}, per-round ratios: ${rows.map((r) => (r.wallS / r.physics.wallS).toFixed(3)).join(', ')})`,
+      `  run, ${workers} worker${plural}, end to end (validation, thread start, calibration, ledger, judging): ${m((r) => r.wallS).toFixed(2)} s wall; ` +
+        `overhead (quartiles / median / quartile of ${rounds} alternating rounds; target <= 5 %): ` +
+        `${pct(q((r) => r.wallS / r.physics.wallS))} % vs physics timed from ready, ` +
+        `${pct(q((r) => r.wallS / (r.physics.startS + r.physics.wallS)))} % vs physics timed from creating its threads`,
     );
     lines.push(
-      `  scheduling overhead, ${workers} worker${plural}: ${(100 * (m((r) => (r.computeS * workers) / r.evalS) - 1)).toFixed(1)} % ` +
-        `(compute wall x workers vs the threads' own chunk evaluation time)`,
+      `  once the workers are ready ${(100 * (m((r) => r.computeS / r.physics.wallS) - 1)).toFixed(1)} %; start-up and closing ${m((r) => r.wallS - r.computeS).toFixed(2)} s; ` +
+        `CPU overhead ${(100 * (m((r) => r.cpuS / r.physics.cpuS) - 1)).toFixed(1)} %; scheduling overhead ${(100 * (m((r) => (r.computeS * workers) / r.evalS) - 1)).toFixed(1)} % ` +
+        `(compute wall x workers vs the threads' own chunk evaluation time); per-round ratios from ready: ${rows.map((r) => (r.wallS / r.physics.wallS).toFixed(3)).join(', ')}`,
     );
   }
   return lines;
@@ -294,7 +314,7 @@ export async function benchScan(): Promise<{ lines: string[] }> {
     const spec = parseSpec(BENCH_SPEC).spec!;
     const total = makePlan(spec, 1).total;
     lines.push(...(await compareRuns(specFile, BENCH_SPEC, [1, 2], ROUNDS)));
-    // a 4x longer scan of the same setup, where the fixed start-up weighs a quarter as much (each run ~25 s here)
+    // a 4x longer scan of the same setup, where the fixed start-up weighs a quarter as much
     const longSpec = { ...BENCH_SPEC, name: 'bench_long', axes: { ...BENCH_SPEC.axes, m_chi: { ...BENCH_SPEC.axes.m_chi, steps: 240 }, m_med: { ...BENCH_SPEC.axes.m_med, steps: 240 } } };
     const longFile = path.join(dir, 'bench-long.json');
     writeFileSync(longFile, JSON.stringify(longSpec));

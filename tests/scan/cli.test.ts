@@ -9,7 +9,7 @@ import { readFileSync, readdirSync, writeFileSync } from 'node:fs';
 import path from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { TRIAL_CHUNKS, TRIAL_POINTS, TRIAL_SPEC, killMoments, killTrial, referenceRows, stableTrial, type Reference } from './kill-trials.js';
-import { query, runCli, tempDir, writeSpec } from './helpers.js';
+import { pointRows, query, runCli, tempDir, writeSpec } from './helpers.js';
 import { baseSpec } from './malformed-specs.js';
 
 let tmp: ReturnType<typeof tempDir>;
@@ -71,6 +71,21 @@ describe('darksieve run through the CLI', () => {
     expect(r.cli.stdout).toMatch(/interrupted/);
     expect(r.cli.stdout).toContain(`resume with: darksieve run ${specFile} --db ${used} --workers 2`);
     expect(r.rows).toEqual(reference.rows);
+  });
+
+  it('a new scan without --chunk (calibrated on real points, which are then not evaluated again) equals the reference bit for bit', async () => {
+    const db = path.join(tmp.dir, 'calibrated.db');
+    let attempt = 0;
+    const run = await stableTrial(specFile, tmp.dir, reference, async () => {
+      const file = `${db}.${attempt++}`;
+      const cli = await runCli(['run', specFile, '--db', file, '--workers', '2', '--quiet']);
+      return { cli, rows: cli.code === 0 ? pointRows(file) : [] };
+    });
+    reference = run.reference;
+    expect(run.result.cli.code, run.result.cli.stderr).toBe(0);
+    // the spread rule (8 chunks per worker) or the time rule set the size, never the reference's 450
+    expect(query<{ chunk_size: number }>(`${db}.${attempt - 1}`, 'SELECT chunk_size FROM scans')[0]!.chunk_size).toBeLessThanOrEqual(TRIAL_POINTS / 16);
+    expect(run.result.rows).toEqual(reference.rows);
   });
 
   it('bad input exits 2 naming every field and leaves an existing ledger byte for byte', async () => {

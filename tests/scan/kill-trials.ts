@@ -52,9 +52,9 @@ export interface Reference {
  * Runs `trial` against `reference`, refreshing the reference and repeating the trial (up to 3 times)
  * when the physics sources change around it.
  */
-export async function stableTrial(
-  specFile: string, dir: string, reference: Reference, trial: () => Promise<TrialResult>,
-): Promise<{ result: TrialResult; reference: Reference; repeats: number }> {
+export async function stableTrial<T = TrialResult>(
+  specFile: string, dir: string, reference: Reference, trial: () => Promise<T>,
+): Promise<{ result: T; reference: Reference; repeats: number }> {
   for (let repeats = 0; ; repeats++) {
     if (physicsFingerprint() !== reference.fingerprint) reference = await referenceRows(specFile, dir);
     const result = await trial();

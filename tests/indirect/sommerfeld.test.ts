@@ -1,0 +1,77 @@
+/**
+ * Sommerfeld factor (physics/indirect/sommerfeld.ts): the Hulthen S(v) and its Maxwellian average
+ * against an independent 40-digit mpmath evaluation (tests/fixtures/indirect/sommerfeld.json, made by
+ * make_sommerfeld_fixtures.py next to it), the notes' check table against the exact Yukawa factor,
+ * the Coulomb limit, and which mediators have a potential at all.
+ */
+import { describe, expect, it } from 'vitest';
+import fixture from '../fixtures/indirect/sommerfeld.json' with { type: 'json' };
+import { maxwellSommerfeld, sommerfeldAlpha, sommerfeldHulthen } from '../../physics/indirect/sommerfeld.js';
+import { relativeVelocityScale } from '../../physics/indirect/velocity-average.js';
+import { parsePoint, type ModelPoint } from '../../physics/model.js';
+
+function close(label: string, got: number, expected: number, relTol: number): void {
+  const diff = Math.abs(got - expected) / Math.abs(expected);
+  expect(diff, `${label}: got ${got}, expected ${expected}, rel diff ${diff.toExponential(2)} > tol ${relTol}`).toBeLessThanOrEqual(relTol);
+}
+
+describe('Hulthen S(v) vs mpmath (fixture sommerfeld.json)', () => {
+  for (const c of fixture.hulthen) {
+    // 1e-12: one closed form in double precision; the resonant case (S ~ 4e6) loses a few digits to
+    // the cancellation in cosh(x) - cos(.) at small x
+    it(`m_phi = ${c.mPhiGeV} GeV, v = ${c.vRel}`, () => close('S', sommerfeldHulthen(c.vRel, c.alpha, c.mChiGeV, c.mPhiGeV), c.S, c.S > 1e5 ? 1e-9 : 1e-12));
+  }
+});
+
+describe('Maxwellian average of S vs mpmath (fixture sommerfeld.json)', () => {
+  for (const c of fixture.maxwellMeans) {
+    it(c.what, () => {
+      const w = relativeVelocityScale(c.sigmaKmS);
+      close('w', w, c.w, 1e-14);
+      const avg = maxwellSommerfeld(w, c.alpha, c.mChiGeV, c.mPhiGeV);
+      expect(avg.converged).toBe(true);
+      // the adaptive rule runs at 1e-8 relative; 1e-7 leaves room for its error estimate
+      close('<S>', avg.mean, c.meanS, 1e-7);
+    });
+  }
+});
+
+describe('limits and the approximation', () => {
+  it('Coulomb limit: S -> (2 pi alpha / v)/(1 - exp(-2 pi alpha / v)) as m_phi -> 0 (Sommerfeld factor, e.g. Cassel 2010 eq. for the Coulomb case; indirect.md B8)', () => {
+    for (const [alpha, v] of [[0.01, 1e-3], [0.1, 1e-2], [0.03, 0.3]] as const) {
+      const t = (2 * Math.PI * alpha) / v;
+      close(`alpha ${alpha}, v ${v}`, sommerfeldHulthen(v, alpha, 1000, 1e-9), t / -Math.expm1(-t), 1e-6);
+    }
+  });
+
+  it('within 1 % of the exact Yukawa factor away from resonances, 25 % near them (indirect.md B8 check table, numerical Schroedinger solution)', () => {
+    // [m_phi, v, exact]; m_chi = 1000 GeV, alpha = 0.01
+    const exact = [[1.0, 1e-1, 1.345], [1.0, 1e-2, 6.284], [0.5, 1e-3, 61.93]] as const;
+    for (const [mPhi, v, s] of exact) close(`m_phi ${mPhi}, v ${v}`, sommerfeldHulthen(v, 0.01, 1000, mPhi), s, 0.03);
+    const nearResonance = [[1.0, 1e-3, 52.72], [5.0, 1e-3, 110.8]] as const;
+    for (const [mPhi, v, s] of nearResonance) close(`m_phi ${mPhi}, v ${v}`, sommerfeldHulthen(v, 0.01, 1000, mPhi), s, 0.25);
+  });
+
+  it('saturates below v ~ m_phi/m_chi at 2 pi^2 c / (1 - cos 2 pi sqrt c) off resonance (indirect.md B8)', () => {
+    const c = (6 * 0.01 * 1000) / (Math.PI ** 2 * 1.0);
+    close('S(v -> 0)', sommerfeldHulthen(1e-9, 0.01, 1000, 1.0), (2 * Math.PI ** 2 * c) / (1 - Math.cos(2 * Math.PI * Math.sqrt(c))), 1e-6);
+  });
+
+  it('no coupling, no enhancement; a heavy mediator barely enhances (common practice, no source)', () => {
+    expect(maxwellSommerfeld(1e-3, 0, 100, 1).mean).toBe(1);
+    const heavy = maxwellSommerfeld(1e-3, 0.001, 100, 1000).mean;
+    expect(heavy).toBeGreaterThan(1);
+    expect(heavy).toBeLessThan(1.01);
+  });
+
+  it('a potential for scalar (Dirac, Majorana) and vector (Dirac) exchange only (indirect.md B8)', () => {
+    const pt = (dm: string, mediator: string): ModelPoint => parsePoint({ dm, mediator, m_chi: 100, m_med: 1, g_chi: 0.5, g_q: 0.1 }).point!;
+    const alpha = 0.25 / (4 * Math.PI);
+    expect(sommerfeldAlpha(pt('dirac', 'scalar'))).toBeCloseTo(alpha, 15);
+    expect(sommerfeldAlpha(pt('majorana', 'scalar'))).toBeCloseTo(alpha, 15);
+    expect(sommerfeldAlpha(pt('dirac', 'vector'))).toBeCloseTo(alpha, 15);
+    expect(sommerfeldAlpha(pt('majorana', 'vector'))).toBeNull();
+    expect(sommerfeldAlpha(pt('dirac', 'axial'))).toBeNull();
+    expect(sommerfeldAlpha(pt('dirac', 'pseudoscalar'))).toBeNull();
+  });
+});

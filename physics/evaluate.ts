@@ -16,7 +16,7 @@ import { mediatorWidth } from './widths.js';
 import { buildAnnihilation } from './annihilation.js';
 import { relicAbundance, DEFAULT_RELIC_KNOBS } from './relic/relic.js';
 import { prepareDirect, directObservables, type DirectPrepared } from './direct/index.js';
-import { prepareIndirect, indirectObservables, INDIRECT_KNOBS, type IndirectPrepared } from './indirect/index.js';
+import { prepareIndirect, indirectObservables, INDIRECT_KNOBS, SOMMERFELD_KNOBS, type IndirectPrepared } from './indirect/index.js';
 import { validityFlags } from './validity.js';
 import type { ModelPoint } from './model.js';
 import type { ScanPhysicsSetup } from './setup.js';
@@ -38,7 +38,8 @@ export function prepare(setup: ScanPhysicsSetup): Prepared {
     observableNames: Object.freeze(
       numericObservableNames(setup.detectors.map((d) => d.name), setup.targets.map((t) => t.name)),
     ),
-    knobs: Object.freeze({ relic: DEFAULT_RELIC_KNOBS, indirect: INDIRECT_KNOBS }),
+    // the Sommerfeld knobs only when the factor is on, so scans made before it existed resume unchanged
+    knobs: Object.freeze({ relic: DEFAULT_RELIC_KNOBS, indirect: setup.sommerfeld ? { ...INDIRECT_KNOBS, sommerfeld: SOMMERFELD_KNOBS } : INDIRECT_KNOBS }),
     direct: prepareDirect(setup),
     indirect: prepareIndirect(setup),
   });

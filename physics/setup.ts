@@ -115,6 +115,12 @@ export interface ScanPhysicsSetup {
    * (x' = 2 E'/m_med). Absent: the fits, flagged 'approximate_yields'.
    */
   readonly yieldTables?: Readonly<Record<string, readonly (readonly [number, number])[]>>;
+  /**
+   * Sommerfeld enhancement of s-wave annihilation today (physics/indirect/sommerfeld.ts): 'hulthen'
+   * multiplies the s-wave part of sigma v in sigv0 and in every target's flux by the halo average of
+   * the Hulthen factor, for scalar and (Dirac) vector mediators. Absent: no factor (the default).
+   */
+  readonly sommerfeld?: 'hulthen';
 }
 
 /** Product defaults (shared physics notes README.md, conventions table). */

@@ -22,6 +22,8 @@
  *    `{kind: "latin_hypercube", count, seed}`; seed is an integer in [0, 2^53).
  *  - `halo`: partial override of physics/setup.ts DEFAULT_HALO (same field names and units).
  *  - `hadronic`: partial override of DEFAULT_HADRONIC.
+ *  - `indirect`: `{sommerfeld: "off"|"hulthen"}` (default "off"): the Sommerfeld factor of
+ *    physics/indirect/sommerfeld.ts on the s-wave part of sigma v today.
  *  - `detectors`, `targets`: lists of physics/setup.ts Detector / Target; a target's energy band
  *    upper edge may be `null` for "no upper edge" (Infinity).
  *  - `constraints`: list validated by the constraints schema (scheduler/constraints).
@@ -166,6 +168,7 @@ const topSchema = z.strictObject({
   sampling: samplingSchema.default({ kind: 'grid' }),
   halo: haloSchema.default({}),
   hadronic: z.strictObject({ scalarSet: z.enum(['A', 'B']).optional(), spinSet: z.string().min(1).optional() }).default({}),
+  indirect: z.strictObject({ sommerfeld: z.enum(['off', 'hulthen']).default('off') }).default({ sommerfeld: 'off' }),
   detectors: z.array(detectorSchema).max(50).default([]),
   targets: z.array(targetSchema).max(50).default([]),
   constraints: constraintsSchema.default([]),
@@ -182,6 +185,7 @@ const KNOWN_KEYS: Record<string, readonly string[]> = {
   targets: ['name', 'kind', 'coneDeg', 'distanceKpc', 'profile', 'energyGeV'],
   sampling: ['kind', 'count', 'seed'],
   hadronic: ['scalarSet', 'spinSet'],
+  indirect: ['sommerfeld'],
 };
 
 // ------------------------------------------------------------------ issue helpers
@@ -470,6 +474,7 @@ export function parseSpec(raw: unknown): { spec?: ScanSpec; issues: Issue[] } {
     hadronic: { ...DEFAULT_HADRONIC, ...dropUndefined(input.hadronic) } as Hadronic,
     detectors: input.detectors.map((d): Detector => ({ ...d })),
     targets: input.targets.map((t): Target => dropUndefined({ ...t, energyGeV: [t.energyGeV[0], t.energyGeV[1] ?? Infinity] as const })),
+    ...(input.indirect.sommerfeld === 'hulthen' ? { sommerfeld: 'hulthen' as const } : {}),
   };
   return {
     spec: { name: input.name, model, axes, sampling: input.sampling, setup, constraints: input.constraints },
@@ -562,6 +567,8 @@ export function resolvedSpecJson(spec: ScanSpec): string {
     detectors: spec.setup.detectors,
     targets: spec.setup.targets.map((t) => ({ ...t, energyGeV: [t.energyGeV[0], Number.isFinite(t.energyGeV[1]) ? t.energyGeV[1] : null] })),
     constraints: spec.constraints,
+    // only when on: the resolved form (and hash) of every spec without it stays as before
+    ...(spec.setup.sommerfeld ? { indirect: { sommerfeld: spec.setup.sommerfeld } } : {}),
   };
   return canonicalJson(doc);
 }

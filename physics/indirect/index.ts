@@ -10,12 +10,19 @@
  *             cascades with the mediator's own decay fractions from physics/widths.ts)
  *          -> flux (flux.ts: Majorana 1/2 <sigma v> rho^2/m^2, Dirac half of that)
  *
+ * With setup.sommerfeld = 'hulthen', each average's s-wave part a_f (the v -> 0 limit of sigma v per
+ * channel) is multiplied by the halo average of the Sommerfeld factor (sommerfeld.ts):
+ * <sigma v>_f + a_f (<S>_w - 1) for every velocity scale w in use.
+ *
  * Flags: 'approximate_yields' (a built-in fit was used), 'no_photon_yield_<channel>' (a final state
  * without a known yield; it contributes no photons), 'stable_mediator_no_photons' (mediator pairs
- * with no open decay), 'sigv0_not_converged' (an adaptive velocity average missed its tolerance).
+ * with no open decay), 'sigv0_not_converged' (an adaptive velocity average missed its tolerance),
+ * 'sommerfeld_hulthen' (the factor raised sigv0 or a flux by more than 0.1 %: approximate, see
+ * sommerfeld.ts), 'sommerfeld_not_applied' (asked for, but pseudoscalar and axial exchange give no
+ * potential the formula covers).
  *
- * Validity: prompt photons only (no inverse-Compton, no lines, no Sommerfeld factor); satellites
- * without the Milky-Way foreground; see each module's head comment.
+ * Validity: prompt photons only (no inverse-Compton, no lines); Sommerfeld only when asked for, s-wave
+ * only; satellites without the Milky-Way foreground; see each module's head comment.
  * References: shared notes indirect.md B5-B8, A6.
  */
 import type { Annihilation } from '../annihilation-model.js';
@@ -32,6 +39,18 @@ import {
   maxwellAverage, relativeVelocityScale, V_MAX_W, type VelocityAverage,
 } from './velocity-average.js';
 import { checkYieldTables, YIELD_REL_TOL, yieldSourceFor, type YieldTable } from './yields.js';
+import { maxwellSommerfeld, sommerfeldAlpha, SOMMERFELD_MAX_INTERVALS, SOMMERFELD_REL_TOL } from './sommerfeld.js';
+
+/**
+ * Relative velocity v1, in units of w, of the two probes v1 and 2 v1 from which the s-wave part is
+ * extrapolated (numerical knob): a = (4 sigma v(v1) - sigma v(2 v1)) / 3 removes the v^2 (p-wave) term,
+ * leaving O(v1^4); v1 is large enough that s - 4 m^2 keeps its digits.
+ */
+export const SWAVE_PROBE_W = 0.01;
+/** Knobs of the Sommerfeld factor, part of a scan's knobs only when the factor is asked for (older scans keep theirs). */
+export const SOMMERFELD_KNOBS = Object.freeze({
+  approximation: 'hulthen', relTol: SOMMERFELD_REL_TOL, maxIntervals: SOMMERFELD_MAX_INTERVALS, swaveProbeW: SWAVE_PROBE_W,
+});
 
 /** Numerical knobs and defaults of the indirect stage, for each scan's provenance. */
 export const INDIRECT_KNOBS = Object.freeze({
@@ -67,6 +86,8 @@ export interface IndirectPrepared {
   readonly yieldTables: Readonly<Record<string, YieldTable>> | undefined;
   /** per-scan cache of photons per annihilation in each band (bounded) */
   readonly memo: PhotonMemo;
+  /** multiply the s-wave part of sigma v by the halo-averaged Sommerfeld factor */
+  readonly sommerfeld: boolean;
 }
 
 export interface IndirectResult {
@@ -136,7 +157,32 @@ export function prepareIndirect(setup: ScanPhysicsSetup): IndirectPrepared {
     galacticVelocityScale: galacticW,
     yieldTables: setup.yieldTables,
     memo: new PhotonMemo(),
+    sommerfeld: setup.sommerfeld === 'hulthen',
   });
+}
+
+/**
+ * The velocity average with its s-wave part enhanced by <S>_w: <sigma v>_f + a_f (<S>_w - 1), a_f the
+ * channel's v -> 0 limit of sigma v, extrapolated from v1 = SWAVE_PROBE_W w and 2 v1 (Richardson).
+ */
+function withSommerfeld(ann: Annihilation, avg: VelocityAverage, w: number, alpha: number, mMedGeV: number, flags: Set<string>): VelocityAverage {
+  const s = maxwellSommerfeld(w, alpha, ann.mChiGeV, mMedGeV);
+  if (!s.converged) flags.add('sigv0_not_converged');
+  const v = SWAVE_PROBE_W * w;
+  const m2 = ann.mChiGeV * ann.mChiGeV;
+  const near = new Float64Array(ann.channels.length);
+  const far = new Float64Array(ann.channels.length);
+  ann.sigmaVByChannelGeV2(m2 * (4 + v * v), near);
+  ann.sigmaVByChannelGeV2(m2 * (4 + 4 * v * v), far);
+  const byChannel = new Float64Array(ann.channels.length);
+  let total = 0;
+  for (let c = 0; c < byChannel.length; c++) {
+    const sWave = Math.max(0, (4 * (near[c] as number) - (far[c] as number)) / 3);
+    byChannel[c] = (avg.byChannelGeV2[c] as number) + sWave * (s.mean - 1);
+    total += byChannel[c] as number;
+  }
+  if (total > avg.totalGeV2 * (1 + 1e-3)) flags.add('sommerfeld_hulthen');
+  return Object.freeze({ totalGeV2: total, byChannelGeV2: byChannel, method: avg.method, converged: avg.converged && s.converged });
 }
 
 /** Mediator decay fractions into final states with a photon yield (the DM pair is closed when m_chi > m_med). */
@@ -195,8 +241,14 @@ function photonsPerAnnihilation(
  */
 export function indirectObservables(point: ModelPoint, ann: Annihilation, prepared: IndirectPrepared): IndirectResult {
   const flags = new Set<string>();
-  const galactic = maxwellAverage(ann, prepared.galacticVelocityScale);
-  if (!galactic.converged) flags.add('sigv0_not_converged');
+  const alpha = prepared.sommerfeld ? sommerfeldAlpha(point) : null;
+  if (prepared.sommerfeld && alpha === null && ann.channels.length > 0) flags.add('sommerfeld_not_applied');
+  const average = (w: number): VelocityAverage => {
+    const avg = maxwellAverage(ann, w);
+    if (!avg.converged) flags.add('sigv0_not_converged');
+    return alpha === null ? avg : withSommerfeld(ann, avg, w, alpha, point.m_med, flags);
+  };
+  const galactic = average(prepared.galacticVelocityScale);
   const branching: Record<string, number> = {};
   ann.channels.forEach((channel, c) => {
     branching[channel.name] = galactic.totalGeV2 > 0 ? (galactic.byChannelGeV2[c] as number) / galactic.totalGeV2 : 0;
@@ -205,11 +257,7 @@ export function indirectObservables(point: ModelPoint, ann: Annihilation, prepar
   const decayFractions = (): Record<string, number> => (fractions ??= mediatorDecayFractions(point));
 
   const fluxByTarget = prepared.targets.map((target, i) => {
-    let avg = galactic;
-    if (target.velocityScale !== prepared.galacticVelocityScale) {
-      avg = maxwellAverage(ann, target.velocityScale);
-      if (!avg.converged) flags.add('sigv0_not_converged');
-    }
+    const avg = target.velocityScale === prepared.galacticVelocityScale ? galactic : average(target.velocityScale);
     if (!(avg.totalGeV2 > 0)) return 0;
     const photons = photonsPerAnnihilation(point, ann, avg, prepared, i, flags, decayFractions);
     return photonFluxCm2s(avg.totalGeV2, target.jGeV2cm5, ann.mChiGeV, photons, point.dm);

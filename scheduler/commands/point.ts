@@ -1,7 +1,8 @@
 /**
  * `darksieve point [--json] [--spec FILE] name=value ...`: every observable of one model point.
  * Parameters not given take the documented defaults of physics/model.ts; with --spec the scan's
- * halo, detectors and targets are used (its axes and constraints are ignored).
+ * halo, detectors, targets and indirect options are used (its axes and constraints are ignored);
+ * --sommerfeld turns the Sommerfeld factor on whatever the spec says.
  */
 import type { Command } from 'commander';
 import { parsePoint, PARAMETERS, allowedText } from '../../physics/model.js';
@@ -46,14 +47,16 @@ export function registerPoint(program: Command): void {
         PARAMETERS.map((p) => `  ${p.name.padEnd(10)} ${p.doc}; ${allowedText(p)}; default ${p.default ?? 'computed'}`).join('\n'),
     )
     .option('--json', 'print one JSON object keyed by parameter and observable names')
-    .option('--spec <file>', 'take halo, detectors and targets from this scan spec')
+    .option('--spec <file>', 'take halo, detectors, targets and indirect options from this scan spec')
+    .option('--sommerfeld', 'multiply the s-wave part of sigma v today by the Sommerfeld factor (Hulthen approximation; scalar and Dirac vector mediators)')
     .argument('[assignments...]', 'name=value pairs')
-    .action(async (assignments: string[], opts: { json?: boolean; spec?: string }) => {
+    .action(async (assignments: string[], opts: { json?: boolean; spec?: string; sommerfeld?: boolean }) => {
       const { raw, issues } = parseAssignments(assignments);
       const parsed = parsePoint(raw);
       const all = [...issues, ...parsed.issues];
       // the spec module (zod, mathjs) is loaded only when a spec is given
-      const setup: ScanPhysicsSetup = opts.spec ? await (await import('../spec.js')).loadSpecSetup(opts.spec) : EMPTY_SETUP;
+      const fromSpec: ScanPhysicsSetup = opts.spec ? await (await import('../spec.js')).loadSpecSetup(opts.spec) : EMPTY_SETUP;
+      const setup: ScanPhysicsSetup = opts.sommerfeld ? { ...fromSpec, sommerfeld: 'hulthen' } : fromSpec;
       if (all.length > 0 || !parsed.point) throw new InvalidInputError(all);
       const point = parsed.point;
       const prepared = prepare(setup);

@@ -56,6 +56,19 @@ function pretty(json: string): string {
   }
 }
 
+/** Whether sigma v today carries the Sommerfeld factor (a model assumption the page states outright). */
+function sommerfeldText(specJson: unknown): string {
+  let choice: unknown;
+  try {
+    choice = (JSON.parse(String(specJson)) as { indirect?: { sommerfeld?: unknown } }).indirect?.sommerfeld;
+  } catch {
+    return 'unknown (no readable spec)';
+  }
+  return choice === 'hulthen'
+    ? 'on: Hulthén approximation on the s-wave part of σv today (sigv0 and fluxes), scalar and Dirac vector mediators; not in the relic abundance'
+    : 'off: σv today without it (no enhancement by light mediators)';
+}
+
 function provenanceOf(scan: ScanRow): { items: ProvenanceItem[]; documents: { label: string; json: string }[] } {
   const items: ProvenanceItem[] = [];
   const documents: { label: string; json: string }[] = [];
@@ -65,6 +78,7 @@ function provenanceOf(scan: ScanRow): { items: ProvenanceItem[]; documents: { la
     if (doc) documents.push({ label: doc, json: pretty(String(value)) });
     else items.push({ label: LABELS[key] ?? key, value: String(value) });
   }
+  items.push({ label: 'Sommerfeld factor', value: sommerfeldText(scan.spec_json) });
   if (!('constants_edition' in scan)) items.push({ label: 'constants edition', value: 'not recorded in this ledger' });
   if (!('knobs_json' in scan)) items.push({ label: 'numerical knobs', value: 'not recorded in this ledger' });
   return { items, documents };

@@ -2,13 +2,17 @@
  * Sommerfeld factor (physics/indirect/sommerfeld.ts): the Hulthen S(v) and its Maxwellian average
  * against an independent 40-digit mpmath evaluation (tests/fixtures/indirect/sommerfeld.json, made by
  * make_sommerfeld_fixtures.py next to it), the notes' check table against the exact Yukawa factor,
- * the Coulomb limit, and which mediators have a potential at all.
+ * the Coulomb limit, which mediators have a potential at all, and the factor in sigv0 and the fluxes.
  */
 import { describe, expect, it } from 'vitest';
 import fixture from '../fixtures/indirect/sommerfeld.json' with { type: 'json' };
 import { maxwellSommerfeld, sommerfeldAlpha, sommerfeldHulthen } from '../../physics/indirect/sommerfeld.js';
 import { relativeVelocityScale } from '../../physics/indirect/velocity-average.js';
 import { parsePoint, type ModelPoint } from '../../physics/model.js';
+import { indirectObservables, prepareIndirect } from '../../physics/indirect/index.js';
+import { buildAnnihilation } from '../../physics/annihilation.js';
+import { mediatorWidth } from '../../physics/widths.js';
+import { DEFAULT_HADRONIC, DEFAULT_HALO, type ScanPhysicsSetup, type Target } from '../../physics/setup.js';
 
 function close(label: string, got: number, expected: number, relTol: number): void {
   const diff = Math.abs(got - expected) / Math.abs(expected);
@@ -73,5 +77,51 @@ describe('limits and the approximation', () => {
     expect(sommerfeldAlpha(pt('majorana', 'vector'))).toBeNull();
     expect(sommerfeldAlpha(pt('dirac', 'axial'))).toBeNull();
     expect(sommerfeldAlpha(pt('dirac', 'pseudoscalar'))).toBeNull();
+  });
+});
+
+describe('the factor in sigv0 and the fluxes (physics/indirect/index.ts)', () => {
+  // alpha = 0.01, m_chi = 1000 GeV, m_phi = 1 GeV: the fixture's Milky-Way and dwarf cases
+  const gChi = Math.sqrt(4 * Math.PI * 0.01);
+  const halo = { ...DEFAULT_HALO, galactic: { ...DEFAULT_HALO.galactic, sigmaVKmS: 150 } };
+  // invented targets for tests (not real objects)
+  const gc: Target = { name: 'gc_cone', kind: 'galactic_centre', coneDeg: 1, energyGeV: [1, Infinity] };
+  const dwarf: Target = {
+    name: 'invented_dwarf', kind: 'satellite', coneDeg: 0.5, distanceKpc: 100, energyGeV: [1, Infinity], velocityDispersionKmS: 10,
+    profile: { kind: 'nfw', rsKpc: 0.5, rhoSGeVcm3: 3.8, rTruncKpc: 5 },
+  };
+  const setupWith = (sommerfeld: boolean): ScanPhysicsSetup => ({
+    halo, detectors: [], targets: [gc, dwarf], hadronic: DEFAULT_HADRONIC, ...(sommerfeld ? { sommerfeld: 'hulthen' as const } : {}),
+  });
+  const both = (p: ModelPoint) => {
+    const ann = buildAnnihilation(p, mediatorWidth(p).totalGeV);
+    return [indirectObservables(p, ann, prepareIndirect(setupWith(false))), indirectObservables(p, ann, prepareIndirect(setupWith(true)))] as const;
+  };
+  const mw = fixture.maxwellMeans.find((c) => c.sigmaKmS === 150 && c.mPhiGeV === 1)!;
+  const dw = fixture.maxwellMeans.find((c) => c.sigmaKmS === 10 && c.mPhiGeV === 1)!;
+
+  it('vector, Dirac, light mediator (s-wave pair annihilation): sigv0 and the GC flux grow by <S> of the Milky Way, the dwarf flux by its own', () => {
+    const [off, on] = both(parsePoint({ dm: 'dirac', mediator: 'vector', m_chi: 1000, m_med: 1, g_chi: gChi, g_q: 0.25 }).point!);
+    // every channel is s-wave here: the ratio is <S> up to the p-wave part, ~ v^2 ~ 1e-6
+    close('sigv0 on/off vs mpmath <S> (Milky Way)', on.sigv0Cm3s / off.sigv0Cm3s, mw.meanS, 1e-4);
+    close('GC flux on/off', (on.fluxByTarget[0] as number) / (off.fluxByTarget[0] as number), mw.meanS, 1e-4);
+    close('dwarf flux on/off vs mpmath <S> (sigma = 10 km/s)', (on.fluxByTarget[1] as number) / (off.fluxByTarget[1] as number), dw.meanS, 1e-4);
+    expect(on.flags).toContain('sommerfeld_hulthen');
+    expect(off.flags).not.toContain('sommerfeld_hulthen');
+    for (const [k, v] of Object.entries(off.branching)) close(`BR ${k}`, on.branching[k] as number, v, 1e-4);
+  });
+
+  it('scalar, Dirac: p-wave annihilation is not enhanced (the s-wave factor only; indirect.md B8)', () => {
+    const [off, on] = both(parsePoint({ dm: 'dirac', mediator: 'scalar', m_chi: 1000, m_med: 1, g_chi: gChi, g_q: 0.25 }).point!);
+    // the s-wave part is extrapolated to v = 0 from two probes, so the p-wave sigma v leaks in at O(v^4)
+    expect(on.sigv0Cm3s / off.sigv0Cm3s).toBeLessThan(1 + 1e-6);
+    expect(on.sigv0Cm3s / off.sigv0Cm3s).toBeGreaterThanOrEqual(1);
+  });
+
+  it('axial exchange: no factor, and a flag says so', () => {
+    const [off, on] = both(parsePoint({ dm: 'dirac', mediator: 'axial', m_chi: 1000, m_med: 1, g_chi: gChi, g_q: 0.25 }).point!);
+    expect(on.sigv0Cm3s).toBe(off.sigv0Cm3s);
+    expect(on.flags).toContain('sommerfeld_not_applied');
+    expect(off.flags).not.toContain('sommerfeld_not_applied');
   });
 });

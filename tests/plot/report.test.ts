@@ -70,7 +70,7 @@ describe('report page content', () => {
     expect(figures[0]!.querySelectorAll('[aria-description="survivors"] circle')).toHaveLength(summary.survivors);
     expect(figures[0]!.querySelectorAll('[aria-description="excluded"] path')).toHaveLength(summary.points - summary.survivors);
     const provenance = doc.querySelectorAll('table')[1]!.textContent ?? '';
-    for (const expected of ['test-physics', 'CODATA2018+PDG2024+Planck2018', 'sha256:test']) expect(provenance).toContain(expected);
+    for (const expected of ['test-physics', 'CODATA2018+PDG2024+Planck2018', 'sha256:test', 'Sommerfeld factoroff']) expect(provenance).toContain(expected);
     const details = [...doc.querySelectorAll('details summary')].map((s) => s.textContent);
     expect(details).toEqual(expect.arrayContaining(['Resolved scan spec', 'Numerical knobs']));
   });

@@ -29,6 +29,22 @@ describe('darksieve point', () => {
     expect(obj.x_f as number).toBeLessThan(30);
   });
 
+  it('--sommerfeld multiplies the s-wave sigma v today by the halo-averaged factor, and flags it', async () => {
+    const { maxwellSommerfeld } = await import('../../physics/indirect/sommerfeld.js');
+    const { relativeVelocityScale } = await import('../../physics/indirect/velocity-average.js');
+    const { DEFAULT_HALO } = await import('../../physics/setup.js');
+    const args = ['--json', 'm_chi=1000', 'm_med=1', 'g_chi=0.3545', 'mediator=vector', 'dm=dirac'];
+    const [on, off] = [cli('--sommerfeld', ...args), cli(...args)].map((r) => {
+      expect(r.status, r.stderr).toBe(0);
+      return JSON.parse(r.stdout) as { sigv0_cm3s: number; flags: string };
+    });
+    // s-wave pair annihilation: the ratio is <S> (tests/indirect/sommerfeld.test.ts checks <S> against mpmath)
+    const s = maxwellSommerfeld(relativeVelocityScale(DEFAULT_HALO.galactic.sigmaVKmS), 0.3545 ** 2 / (4 * Math.PI), 1000, 1).mean;
+    expect(on!.sigv0_cm3s / off!.sigv0_cm3s).toBeCloseTo(s, 3);
+    expect(on!.flags).toContain('sommerfeld_hulthen');
+    expect(off!.flags).not.toContain('sommerfeld');
+  });
+
   it('prints a readable table with units without --json', () => {
     const r = cli('mediator=axial', 'dm=majorana');
     expect(r.status, r.stderr).toBe(0);

@@ -66,6 +66,8 @@ export const MALFORMED: readonly MalformedCase[] = [
   { what: 'log spacing from zero', path: 'axes.g_q.spacing', mutate: (s) => { delete s.model.g_q; s.axes.g_q = { from: 0, to: 1, steps: 3, spacing: 'log' }; } },
   { what: 'grid with too many points', path: 'axes', mutate: (s) => { s.axes.m_chi.steps = 1e7; s.axes.g_q = { from: 0.1, to: 1, steps: 1e7 }; delete s.model.g_q; } },
   { what: 'unknown scalar set', path: 'hadronic.scalarSet', mutate: (s) => { s.hadronic = { scalarSet: 'C' }; } },
+  { what: 'unknown Sommerfeld approximation', path: 'indirect.sommerfeld', mutate: (s) => { s.indirect = { sommerfeld: 'exact' }; } },
+  { what: 'unknown indirect key', path: 'indirect.boost', mutate: (s) => { s.indirect = { boost: 10 }; } },
 ];
 
 /** Applies a case to a fresh base spec. */

@@ -53,6 +53,22 @@ describe('spec validation', () => {
     other.axes.m_chi.steps = 6;
     expect(specHash(resolvedSpecJson(parseSpec(other).spec!))).not.toBe(specHash(json));
   });
+
+  it('the Sommerfeld option: off leaves the resolved form (and the hash of older specs) as it was; on round-trips and enters the knobs', async () => {
+    const base = resolvedSpecJson(parseSpec(baseSpec()).spec!);
+    expect(base).not.toContain('indirect');
+    expect(resolvedSpecJson(parseSpec({ ...baseSpec(), indirect: { sommerfeld: 'off' } }).spec!)).toBe(base);
+    const { spec } = parseSpec({ ...baseSpec(), indirect: { sommerfeld: 'hulthen' } });
+    expect(spec!.setup.sommerfeld).toBe('hulthen');
+    const json = resolvedSpecJson(spec!);
+    expect(json).not.toBe(base);
+    expect(resolvedSpecJson(specFromResolvedJson(json))).toBe(json);
+    expect(decodeResolvedSpec(json).setup.sommerfeld).toBe('hulthen');
+    const { prepare } = await import('../../physics/evaluate.js');
+    const knobs = (setup: NonNullable<typeof spec>["setup"]) => prepare(setup).knobs.indirect as Record<string, unknown>;
+    expect(knobs(spec!.setup).sommerfeld).toMatchObject({ approximation: 'hulthen' });
+    expect(knobs(parseSpec(baseSpec()).spec!.setup).sommerfeld).toBeUndefined();
+  });
 });
 
 describe('plan', () => {

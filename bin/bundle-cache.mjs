@@ -19,6 +19,9 @@
 // bundledEntry() returns null, and callers load the TypeScript through tsx as before, when
 // DARKSIEVE_NO_BUNDLE is set, when the cache folder cannot be written, or when esbuild fails (a
 // syntax error is then reported by tsx in the usual way). DARKSIEVE_DEBUG prints why.
+//
+// `node bin/bundle-cache.mjs` builds the bundles of the CLI and the worker thread at once, for installs
+// whose node_modules is read-only afterwards (the compose file's workers).
 import { createRequire } from 'node:module';
 import { mkdirSync, readFileSync, readdirSync, renameSync, statSync, unlinkSync, writeFileSync } from 'node:fs';
 import { readFile } from 'node:fs/promises';
@@ -134,7 +137,10 @@ const building = new Map();
  * @returns {Promise<string | null>}
  */
 export async function bundledEntry(entryUrl) {
-  if (process.env.DARKSIEVE_NO_BUNDLE) return null;
+  if (process.env.DARKSIEVE_NO_BUNDLE) {
+    debug('DARKSIEVE_NO_BUNDLE is set: loading the TypeScript through tsx');
+    return null;
+  }
   const entryFile = fileURLToPath(entryUrl);
   const name = path.relative(ROOT, entryFile).replace(/\.[^.]+$/, '').replace(/[^A-Za-z0-9]+/g, '_');
   try {
@@ -155,4 +161,22 @@ export async function bundledEntry(entryUrl) {
     debug(`${name}: loading the TypeScript through tsx instead (${err instanceof Error ? err.message : String(err)})`);
     return null;
   }
+}
+
+/** The entries darksieve starts from: the CLI, and the worker thread of the embedded pool and of Redis workers. */
+const ENTRIES = ['scheduler/cli.ts', 'workers/thread.ts'];
+
+// `node bin/bundle-cache.mjs`: builds the bundles now, for an install whose node_modules is read-only
+// afterwards (the compose workers mount it so; without bundles they run through tsx)
+if (process.argv[1] && import.meta.url === pathToFileURL(path.resolve(process.argv[1])).href) {
+  let failed = 0;
+  for (const entry of ENTRIES) {
+    const url = await bundledEntry(pathToFileURL(path.join(ROOT, entry)));
+    if (url) process.stdout.write(`${entry}: ${fileURLToPath(url)}\n`);
+    else {
+      failed++;
+      process.stdout.write(`${entry}: no bundle (DARKSIEVE_DEBUG=1 says why); darksieve will load it through tsx\n`);
+    }
+  }
+  process.exitCode = failed > 0 ? 1 : 0;
 }

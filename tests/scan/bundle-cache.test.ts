@@ -90,6 +90,24 @@ describe('bundle cache', () => {
   });
 });
 
+describe('node bin/bundle-cache.mjs', () => {
+  it('builds the CLI and worker-thread bundles at once and names them; those are the ones later starts use', async () => {
+    const { spawnSync } = await import('node:child_process');
+    const script = fileURLToPath(new URL('../../bin/bundle-cache.mjs', import.meta.url));
+    const r = spawnSync(process.execPath, [script], { encoding: 'utf8', timeout: 120_000 });
+    expect(r.status, r.stderr).toBe(0);
+    const built = new Map(r.stdout.trim().split('\n').map((line) => line.split(': ') as [string, string]));
+    expect([...built.keys()]).toEqual(['scheduler/cli.ts', 'workers/thread.ts']);
+    for (const [entry, file] of built) {
+      expect(await bundledEntry(new URL(`../../${entry}`, import.meta.url))).toBe(pathToFileURL(file).href);
+    }
+    // without bundles it says so and fails, so an install step notices
+    const off = spawnSync(process.execPath, [script], { encoding: 'utf8', timeout: 120_000, env: { ...process.env, DARKSIEVE_NO_BUNDLE: '1' } });
+    expect(off.status).toBe(1);
+    expect(off.stdout).toMatch(/scheduler\/cli\.ts: no bundle/);
+  });
+});
+
 describe('the bundled worker thread', () => {
   it('computes the real physics bit for bit as the sources do through tsx and in this process', async () => {
     const { runScan } = await import('../../scheduler/run.js');

@@ -77,6 +77,11 @@ export interface Target {
   readonly kind: 'galactic_centre' | 'satellite';
   /** cone half-angle around the target centre, degrees */
   readonly coneDeg: number;
+  /**
+   * optional: inner half-angle, degrees (0 <= innerDeg < coneDeg): the region is then the ring between
+   * innerDeg and coneDeg (e.g. a Galactic-Centre region that leaves out the innermost degrees)
+   */
+  readonly innerDeg?: number;
   /** satellite only: distance from the Sun, kpc */
   readonly distanceKpc?: number;
   /** satellite only: its own profile (with truncation radius) */

@@ -126,11 +126,17 @@ const targetSchema = z
     name: columnName,
     kind: z.enum(['galactic_centre', 'satellite']),
     coneDeg: z.number().positive().max(180),
+    innerDeg: z.number().min(0).max(180).optional(),
     distanceKpc: positive.optional(),
     profile: profileSchema.optional(),
+    velocityDispersionKmS: positive.lt(3000).optional(),
     energyGeV: z.tuple([positive, positive.nullable()]),
   })
   .superRefine((t, ctx) => {
+    if (t.innerDeg !== undefined && !(t.innerDeg < t.coneDeg))
+      ctx.addIssue({ code: 'custom', path: ['innerDeg'], message: 'the inner half-angle must be below coneDeg', input: t.innerDeg, params: { allowed: `0 <= innerDeg < ${t.coneDeg}` } });
+    if (t.kind === 'galactic_centre' && t.velocityDispersionKmS !== undefined)
+      ctx.addIssue({ code: 'custom', path: ['velocityDispersionKmS'], message: 'velocityDispersionKmS is only used by satellite targets (the galactic centre uses halo.galactic.sigmaVKmS)', input: t.velocityDispersionKmS, params: { allowed: 'absent' } });
     if (t.energyGeV[1] !== null && !(t.energyGeV[1] > t.energyGeV[0]))
       ctx.addIssue({ code: 'custom', path: ['energyGeV'], message: 'the upper edge must exceed the lower edge', input: t.energyGeV, params: { allowed: '[lo, hi] GeV with 0 < lo < hi, or [lo, null]' } });
     for (const key of ['distanceKpc', 'profile'] as const) {
@@ -182,7 +188,7 @@ const KNOWN_KEYS: Record<string, readonly string[]> = {
   galactic: ['profile', 'r0Kpc', 'rhoLocalGeVcm3', 'sigmaVKmS'],
   profile: ['kind', 'rsKpc', 'alpha', 'rhoSGeVcm3', 'rTruncKpc'],
   detectors: ['name', 'target', 'windowKeV', 'efficiency', 'exposureKgDay'],
-  targets: ['name', 'kind', 'coneDeg', 'distanceKpc', 'profile', 'energyGeV'],
+  targets: ['name', 'kind', 'coneDeg', 'innerDeg', 'distanceKpc', 'profile', 'velocityDispersionKmS', 'energyGeV'],
   sampling: ['kind', 'count', 'seed'],
   hadronic: ['scalarSet', 'spinSet'],
   indirect: ['sommerfeld'],

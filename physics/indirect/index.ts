@@ -32,7 +32,7 @@ import type { ModelPoint } from '../model.js';
 import type { ScanPhysicsSetup, Target } from '../setup.js';
 import { mediatorWidth } from '../widths.js';
 import { cascadePhotons, directPhotons, photonFluxCm2s, PhotonMemo, PHOTON_MEMO_MASSES, type Band } from './flux.js';
-import { CONE_REL_TOL, coneJFactor, J_MAX_INTERVALS, LOS_REL_TOL } from './jfactor.js';
+import { CONE_REL_TOL, J_MAX_INTERVALS, LOS_REL_TOL, ringJFactor } from './jfactor.js';
 import { EINASTO_ALPHA_DEFAULT, GALACTIC_OUTER_RADIUS_KPC, galacticDensity, satelliteDensity, UNTRUNCATED_OUTER_RADIUS_RS } from './profiles.js';
 import {
   ADAPTIVE_MAX_INTERVALS, ADAPTIVE_REL_TOL, CHECK_NODES, CHECK_REL_TOL, CLEARANCE_W2, FAST_NODES,
@@ -106,6 +106,9 @@ function checkTarget(t: Target, path: string, issues: Issue[]): void {
   if (!(Number.isFinite(t.coneDeg) && t.coneDeg > 0 && t.coneDeg <= 180)) {
     issues.push({ code: 'out_of_range', path: `${path}.coneDeg`, message: 'cone half-angle must be in (0, 180] degrees', seen: String(t.coneDeg), allowed: '0 < coneDeg <= 180' });
   }
+  if (t.innerDeg !== undefined && !(Number.isFinite(t.innerDeg) && t.innerDeg >= 0 && t.innerDeg < t.coneDeg)) {
+    issues.push({ code: 'out_of_range', path: `${path}.innerDeg`, message: 'inner half-angle must be at least 0 and below coneDeg (degrees)', seen: String(t.innerDeg), allowed: `0 <= innerDeg < ${t.coneDeg}` });
+  }
   const [lo, hi] = t.energyGeV ?? [NaN, NaN];
   if (!(Number.isFinite(lo) && lo > 0 && hi > lo)) {
     issues.push({
@@ -144,10 +147,11 @@ export function prepareIndirect(setup: ScanPhysicsSetup): IndirectPrepared {
   const galaxy = needsGalaxy ? galacticDensity(setup.halo.galactic) : null;
   const targets = setup.targets.map((t, i): PreparedTarget => {
     const coneRad = (t.coneDeg * Math.PI) / 180;
+    const innerRad = ((t.innerDeg ?? 0) * Math.PI) / 180;
     const jGeV2cm5 =
       t.kind === 'galactic_centre'
-        ? coneJFactor(galaxy!, setup.halo.galactic.r0Kpc, coneRad)
-        : coneJFactor(satelliteDensity(t, `targets[${i}]`), t.distanceKpc as number, coneRad);
+        ? ringJFactor(galaxy!, setup.halo.galactic.r0Kpc, innerRad, coneRad)
+        : ringJFactor(satelliteDensity(t, `targets[${i}]`), t.distanceKpc as number, innerRad, coneRad);
     const velocityScale =
       t.kind === 'satellite' && t.velocityDispersionKmS !== undefined ? relativeVelocityScale(t.velocityDispersionKmS) : galacticW;
     return Object.freeze({ name: t.name, kind: t.kind, jGeV2cm5, band: Object.freeze({ loGeV: t.energyGeV[0], hiGeV: t.energyGeV[1] }), velocityScale });

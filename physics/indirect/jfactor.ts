@@ -1,6 +1,7 @@
 /**
  * J-factors: J(cone) = Int_cone dOmega Int_los rho^2 dl, in GeV^2 cm^-5, for a cone of half-angle
- * theta centred on a halo's centre (the Galactic Centre, or a satellite's centre).
+ * theta centred on a halo's centre (the Galactic Centre, or a satellite's centre), and for a ring
+ * (annulus) between two such cones, as regions of interest that leave out the innermost degrees.
  *
  * Method (shared notes indirect.md B6): observer at distance D from the halo centre, direction at
  * angle psi from it; impact parameter b = D sin psi, tangent-point distance l* = D cos psi. The line
@@ -11,7 +12,9 @@
  * the chord, and directions with b >= r_max see nothing. The cone is
  * J = 2 pi Int_0^theta' sin psi J_los(psi) dpsi with psi = theta' x^2 (the integrand stays finite as
  * psi -> 0 for a cusp; psi = 0 is never evaluated), theta' = min(theta, asin(r_max/D)) when the
- * observer is outside the halo. Both integrals use the adaptive Gauss-Kronrod of physics/numerics.
+ * observer is outside the halo. A ring theta_in < psi < theta_out is integrated directly in psi
+ * (no cusp inside it; subtracting two cones would lose digits for thin rings). Both integrals use the
+ * adaptive Gauss-Kronrod of physics/numerics.
  *
  * Validity: spherical halos; no foreground (a satellite's J does not include the Milky-Way halo along
  * the same line of sight, as is usual for dwarf analyses, indirect.md B6 note). Accuracy: relative
@@ -73,5 +76,23 @@ export function coneJFactor(density: HaloDensity, dKpc: number, coneRad: number)
     const psi = theta * x * x;
     return 2 * theta * x * Math.sin(psi) * losIntegral(density, dKpc, psi);
   }, 0, 1, { relTol: CONE_REL_TOL, maxIntervals: J_MAX_INTERVALS }).value;
+  return 2 * Math.PI * value * KPC_CM;
+}
+
+/**
+ * J-factor of the ring innerRad < psi < outerRad around the halo centre, GeV^2 cm^-5 (innerRad = 0:
+ * the cone, coneJFactor). Directions beyond the halo's edge (observer outside it) contribute nothing.
+ */
+export function ringJFactor(density: HaloDensity, dKpc: number, innerRad: number, outerRad: number): number {
+  if (!(innerRad >= 0 && outerRad > innerRad && outerRad <= Math.PI)) {
+    throw new RangeError(`ringJFactor: need 0 <= inner < outer <= pi, got ${innerRad}, ${outerRad}`);
+  }
+  if (innerRad === 0) return coneJFactor(density, dKpc, outerRad);
+  const edge = density.rMaxKpc < dKpc ? Math.asin(density.rMaxKpc / dKpc) : Math.PI;
+  const outer = Math.min(outerRad, edge);
+  if (!(outer > innerRad)) return 0;
+  const value = integrate((psi: number) => Math.sin(psi) * losIntegral(density, dKpc, psi), innerRad, outer, {
+    relTol: CONE_REL_TOL, maxIntervals: J_MAX_INTERVALS,
+  }).value;
   return 2 * Math.PI * value * KPC_CM;
 }

@@ -7,7 +7,7 @@
 import { describe, expect, it } from 'vitest';
 import galactic from '../fixtures/indirect/jfactor-galactic.json' with { type: 'json' };
 import satellite from '../fixtures/indirect/jfactor-satellite.json' with { type: 'json' };
-import { coneJFactor, losIntegral } from '../../physics/indirect/jfactor.js';
+import { coneJFactor, losIntegral, ringJFactor } from '../../physics/indirect/jfactor.js';
 import { galacticDensity, satelliteDensity, type HaloDensity } from '../../physics/indirect/profiles.js';
 import { BASE, SOLAR_MASS_GEV } from '../../physics/constants.js';
 import type { ProfileKind, Target } from '../../physics/setup.js';
@@ -44,6 +44,29 @@ describe('Galactic Centre cones vs independent scipy quadrature (jfactor-galacti
       close('J', coneJFactor(rho, c.r0Kpc, c.coneDeg * DEG), c.jGeV2cm5, 1e-6);
     });
   }
+});
+
+describe('rings between two cones vs the independent scipy cones (jfactor-*.json)', () => {
+  const base = galactic.cases.filter((c) => c.label === 'nfw rs=20 R0=8.5 rho0=0.3 (notes baseline)');
+  const cone = (deg: number) => base.find((c) => c.coneDeg === deg)!;
+  for (const [inner, outer] of [[0.1, 1], [1, 5], [0.1, 5]] as const) {
+    // 1e-6 as for the cones; the ring is integrated on its own, the expected value is a difference of two scipy cones
+    it(`Galactic Centre ring ${inner}-${outer} deg = J(${outer}) - J(${inner})`, () => {
+      const c = cone(outer);
+      const rho = mwDensity('nfw', c.rsKpc, c.r0Kpc, c.rhoLocalGeVcm3);
+      close('J ring', ringJFactor(rho, c.r0Kpc, inner * DEG, outer * DEG), cone(outer).jGeV2cm5 - cone(inner).jGeV2cm5, 1e-6);
+    });
+  }
+
+  it('satellite ring 0.1-0.5 deg = J(0.5) - J(0.1); a ring beyond the halo edge sees nothing; inner 0 is the cone', () => {
+    const { density, d } = dwarf(satellite.rsKpc, satellite.rhoSGeVcm3, satellite.distanceKpc, satellite.rTruncKpc);
+    const [c01, c05] = satellite.cones as [{ coneDeg: number; jGeV2cm5: number }, { coneDeg: number; jGeV2cm5: number }];
+    close('J ring', ringJFactor(density, d, 0.1 * DEG, 0.5 * DEG), c05.jGeV2cm5 - c01.jGeV2cm5, 1e-6);
+    const edge = Math.asin(satellite.rTruncKpc / satellite.distanceKpc);
+    expect(ringJFactor(density, d, edge * 1.01, edge * 2)).toBe(0);
+    expect(ringJFactor(density, d, 0, 0.5 * DEG)).toBe(coneJFactor(density, d, 0.5 * DEG));
+    expect(() => ringJFactor(density, d, 0.5 * DEG, 0.5 * DEG)).toThrow(RangeError);
+  });
 });
 
 describe('reference values of indirect.md B6 (derived+num there, quoted to 4 digits: tolerance 1e-3)', () => {

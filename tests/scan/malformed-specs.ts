@@ -68,6 +68,9 @@ export const MALFORMED: readonly MalformedCase[] = [
   { what: 'unknown scalar set', path: 'hadronic.scalarSet', mutate: (s) => { s.hadronic = { scalarSet: 'C' }; } },
   { what: 'unknown Sommerfeld approximation', path: 'indirect.sommerfeld', mutate: (s) => { s.indirect = { sommerfeld: 'exact' }; } },
   { what: 'unknown indirect key', path: 'indirect.boost', mutate: (s) => { s.indirect = { boost: 10 }; } },
+  { what: 'ring wider inside than outside', path: 'targets[0].innerDeg', mutate: (s) => { s.targets[0].innerDeg = s.targets[0].coneDeg; } },
+  { what: 'negative inner half-angle', path: 'targets[0].innerDeg', mutate: (s) => { s.targets[0].innerDeg = -1; } },
+  { what: 'dispersion on the galactic centre', path: 'targets[0].velocityDispersionKmS', mutate: (s) => { s.targets[0].velocityDispersionKmS = 10; } },
 ];
 
 /** Applies a case to a fresh base spec. */

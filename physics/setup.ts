@@ -82,6 +82,11 @@ export interface Target {
    * innerDeg and coneDeg (e.g. a Galactic-Centre region that leaves out the innermost degrees)
    */
   readonly innerDeg?: number;
+  /**
+   * optional: angle between the cone's axis and the target centre, degrees (0 to 180; not together
+   * with innerDeg): a region off the Galactic Centre, or off a satellite's centre
+   */
+  readonly offsetDeg?: number;
   /** satellite only: distance from the Sun, kpc */
   readonly distanceKpc?: number;
   /** satellite only: its own profile (with truncation radius) */

@@ -127,12 +127,15 @@ const targetSchema = z
     kind: z.enum(['galactic_centre', 'satellite']),
     coneDeg: z.number().positive().max(180),
     innerDeg: z.number().min(0).max(180).optional(),
+    offsetDeg: z.number().min(0).max(180).optional(),
     distanceKpc: positive.optional(),
     profile: profileSchema.optional(),
     velocityDispersionKmS: positive.lt(3000).optional(),
     energyGeV: z.tuple([positive, positive.nullable()]),
   })
   .superRefine((t, ctx) => {
+    if (t.offsetDeg !== undefined && t.innerDeg !== undefined)
+      ctx.addIssue({ code: 'custom', path: ['offsetDeg'], message: 'an offset cone cannot also be a ring: give offsetDeg or innerDeg, not both', input: t.offsetDeg, params: { allowed: 'one of offsetDeg, innerDeg' } });
     if (t.innerDeg !== undefined && !(t.innerDeg < t.coneDeg))
       ctx.addIssue({ code: 'custom', path: ['innerDeg'], message: 'the inner half-angle must be below coneDeg', input: t.innerDeg, params: { allowed: `0 <= innerDeg < ${t.coneDeg}` } });
     if (t.kind === 'galactic_centre' && t.velocityDispersionKmS !== undefined)
@@ -188,7 +191,7 @@ const KNOWN_KEYS: Record<string, readonly string[]> = {
   galactic: ['profile', 'r0Kpc', 'rhoLocalGeVcm3', 'sigmaVKmS'],
   profile: ['kind', 'rsKpc', 'alpha', 'rhoSGeVcm3', 'rTruncKpc'],
   detectors: ['name', 'target', 'windowKeV', 'efficiency', 'exposureKgDay'],
-  targets: ['name', 'kind', 'coneDeg', 'innerDeg', 'distanceKpc', 'profile', 'velocityDispersionKmS', 'energyGeV'],
+  targets: ['name', 'kind', 'coneDeg', 'innerDeg', 'offsetDeg', 'distanceKpc', 'profile', 'velocityDispersionKmS', 'energyGeV'],
   sampling: ['kind', 'count', 'seed'],
   hadronic: ['scalarSet', 'spinSet'],
   indirect: ['sommerfeld'],

@@ -32,7 +32,8 @@ import type { ModelPoint } from '../model.js';
 import type { ScanPhysicsSetup, Target } from '../setup.js';
 import { mediatorWidth } from '../widths.js';
 import { cascadePhotons, directPhotons, photonFluxCm2s, PhotonMemo, PHOTON_MEMO_MASSES, type Band } from './flux.js';
-import { CONE_REL_TOL, J_MAX_INTERVALS, LOS_REL_TOL, ringJFactor } from './jfactor.js';
+import { CONE_REL_TOL, J_MAX_INTERVALS, LOS_REL_TOL, offsetConeJFactor, ringJFactor } from './jfactor.js';
+import type { HaloDensity } from './profiles.js';
 import { EINASTO_ALPHA_DEFAULT, GALACTIC_OUTER_RADIUS_KPC, galacticDensity, satelliteDensity, UNTRUNCATED_OUTER_RADIUS_RS } from './profiles.js';
 import {
   ADAPTIVE_MAX_INTERVALS, ADAPTIVE_REL_TOL, CHECK_NODES, CHECK_REL_TOL, CLEARANCE_W2, FAST_NODES,
@@ -109,6 +110,12 @@ function checkTarget(t: Target, path: string, issues: Issue[]): void {
   if (t.innerDeg !== undefined && !(Number.isFinite(t.innerDeg) && t.innerDeg >= 0 && t.innerDeg < t.coneDeg)) {
     issues.push({ code: 'out_of_range', path: `${path}.innerDeg`, message: 'inner half-angle must be at least 0 and below coneDeg (degrees)', seen: String(t.innerDeg), allowed: `0 <= innerDeg < ${t.coneDeg}` });
   }
+  if (t.offsetDeg !== undefined && !(Number.isFinite(t.offsetDeg) && t.offsetDeg >= 0 && t.offsetDeg <= 180)) {
+    issues.push({ code: 'out_of_range', path: `${path}.offsetDeg`, message: 'offset of the cone axis must be in [0, 180] degrees', seen: String(t.offsetDeg), allowed: '0 <= offsetDeg <= 180' });
+  }
+  if (t.offsetDeg !== undefined && t.innerDeg !== undefined) {
+    issues.push({ code: 'invalid', path: `${path}.offsetDeg`, message: 'an offset cone cannot also be a ring: give offsetDeg or innerDeg, not both', seen: `offsetDeg ${t.offsetDeg}, innerDeg ${t.innerDeg}`, allowed: 'one of offsetDeg, innerDeg' });
+  }
   const [lo, hi] = t.energyGeV ?? [NaN, NaN];
   if (!(Number.isFinite(lo) && lo > 0 && hi > lo)) {
     issues.push({
@@ -148,10 +155,13 @@ export function prepareIndirect(setup: ScanPhysicsSetup): IndirectPrepared {
   const targets = setup.targets.map((t, i): PreparedTarget => {
     const coneRad = (t.coneDeg * Math.PI) / 180;
     const innerRad = ((t.innerDeg ?? 0) * Math.PI) / 180;
+    const offsetRad = ((t.offsetDeg ?? 0) * Math.PI) / 180;
+    const region = (density: HaloDensity, dKpc: number): number =>
+      offsetRad > 0 ? offsetConeJFactor(density, dKpc, coneRad, offsetRad) : ringJFactor(density, dKpc, innerRad, coneRad);
     const jGeV2cm5 =
       t.kind === 'galactic_centre'
-        ? ringJFactor(galaxy!, setup.halo.galactic.r0Kpc, innerRad, coneRad)
-        : ringJFactor(satelliteDensity(t, `targets[${i}]`), t.distanceKpc as number, innerRad, coneRad);
+        ? region(galaxy!, setup.halo.galactic.r0Kpc)
+        : region(satelliteDensity(t, `targets[${i}]`), t.distanceKpc as number);
     const velocityScale =
       t.kind === 'satellite' && t.velocityDispersionKmS !== undefined ? relativeVelocityScale(t.velocityDispersionKmS) : galacticW;
     return Object.freeze({ name: t.name, kind: t.kind, jGeV2cm5, band: Object.freeze({ loGeV: t.energyGeV[0], hiGeV: t.energyGeV[1] }), velocityScale });

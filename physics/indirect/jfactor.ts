@@ -1,7 +1,8 @@
 /**
  * J-factors: J(cone) = Int_cone dOmega Int_los rho^2 dl, in GeV^2 cm^-5, for a cone of half-angle
  * theta centred on a halo's centre (the Galactic Centre, or a satellite's centre), and for a ring
- * (annulus) between two such cones, as regions of interest that leave out the innermost degrees.
+ * (annulus) between two such cones, as regions of interest that leave out the innermost degrees, and
+ * for a cone whose axis points offsetDeg away from the centre (a region off the Galactic Centre).
  *
  * Method (shared notes indirect.md B6): observer at distance D from the halo centre, direction at
  * angle psi from it; impact parameter b = D sin psi, tangent-point distance l* = D cos psi. The line
@@ -13,8 +14,13 @@
  * J = 2 pi Int_0^theta' sin psi J_los(psi) dpsi with psi = theta' x^2 (the integrand stays finite as
  * psi -> 0 for a cusp; psi = 0 is never evaluated), theta' = min(theta, asin(r_max/D)) when the
  * observer is outside the halo. A ring theta_in < psi < theta_out is integrated directly in psi
- * (no cusp inside it; subtracting two cones would lose digits for thin rings). Both integrals use the
- * adaptive Gauss-Kronrod of physics/numerics.
+ * (no cusp inside it; subtracting two cones would lose digits for thin rings). An offset cone of
+ * half-angle theta with its axis at psi0 from the centre is integrated over psi in
+ * [|psi0 - theta|, psi0 + theta] with the azimuthal width of the cone at each psi,
+ * Delta phi = 2 acos[(cos theta - cos psi cos psi0)/(sin psi sin psi0)] (spherical law of cosines), in
+ * psi = a + (b - a)(1 - cos pi u)/2, which smooths the square-root edges of Delta phi; when the centre
+ * lies inside the cone, the full disc psi < theta - psi0 is a cone of its own (with its cusp mapping).
+ * Both integrals use the adaptive Gauss-Kronrod of physics/numerics.
  *
  * Validity: spherical halos; no foreground (a satellite's J does not include the Milky-Way halo along
  * the same line of sight, as is usual for dwarf analyses, indirect.md B6 note). Accuracy: relative
@@ -95,4 +101,34 @@ export function ringJFactor(density: HaloDensity, dKpc: number, innerRad: number
     relTol: CONE_REL_TOL, maxIntervals: J_MAX_INTERVALS,
   }).value;
   return 2 * Math.PI * value * KPC_CM;
+}
+
+/**
+ * J-factor of a cone of half-angle coneRad whose axis lies offsetRad from the halo centre, GeV^2 cm^-5
+ * (offsetRad = 0: coneJFactor). Directions beyond the halo's edge contribute nothing.
+ */
+export function offsetConeJFactor(density: HaloDensity, dKpc: number, coneRad: number, offsetRad: number): number {
+  if (!(coneRad > 0 && coneRad <= Math.PI && offsetRad >= 0 && offsetRad <= Math.PI)) {
+    throw new RangeError(`offsetConeJFactor: need 0 < cone <= pi and 0 <= offset <= pi, got ${coneRad}, ${offsetRad}`);
+  }
+  if (offsetRad === 0) return coneJFactor(density, dKpc, coneRad);
+  // the full disc around the centre, when the cone holds it
+  const disc = coneRad > offsetRad ? coneJFactor(density, dKpc, coneRad - offsetRad) : 0;
+  const edge = density.rMaxKpc < dKpc ? Math.asin(density.rMaxKpc / dKpc) : Math.PI;
+  const lo = Math.abs(offsetRad - coneRad);
+  const hi = Math.min(offsetRad + coneRad, Math.PI, edge);
+  if (!(hi > lo)) return disc;
+  const cosTheta = Math.cos(coneRad);
+  const cosOffset = Math.cos(offsetRad);
+  const sinOffset = Math.sin(offsetRad);
+  const width = (psi: number): number => {
+    const c = (cosTheta - Math.cos(psi) * cosOffset) / (Math.sin(psi) * sinOffset);
+    return c <= -1 ? 2 * Math.PI : c >= 1 ? 0 : 2 * Math.acos(c);
+  };
+  const value = integrate((u: number) => {
+    const psi = lo + ((hi - lo) * (1 - Math.cos(Math.PI * u))) / 2;
+    const dpsi = ((hi - lo) * Math.PI * Math.sin(Math.PI * u)) / 2;
+    return dpsi * Math.sin(psi) * width(psi) * losIntegral(density, dKpc, psi);
+  }, 0, 1, { relTol: CONE_REL_TOL, maxIntervals: J_MAX_INTERVALS }).value;
+  return disc + value * KPC_CM;
 }

@@ -7,7 +7,8 @@
 import { describe, expect, it } from 'vitest';
 import galactic from '../fixtures/indirect/jfactor-galactic.json' with { type: 'json' };
 import satellite from '../fixtures/indirect/jfactor-satellite.json' with { type: 'json' };
-import { coneJFactor, losIntegral, ringJFactor } from '../../physics/indirect/jfactor.js';
+import offset from '../fixtures/indirect/jfactor-offset.json' with { type: 'json' };
+import { coneJFactor, losIntegral, offsetConeJFactor, ringJFactor } from '../../physics/indirect/jfactor.js';
 import { galacticDensity, satelliteDensity, type HaloDensity } from '../../physics/indirect/profiles.js';
 import { BASE, SOLAR_MASS_GEV } from '../../physics/constants.js';
 import type { ProfileKind, Target } from '../../physics/setup.js';
@@ -66,6 +67,26 @@ describe('rings between two cones vs the independent scipy cones (jfactor-*.json
     expect(ringJFactor(density, d, edge * 1.01, edge * 2)).toBe(0);
     expect(ringJFactor(density, d, 0, 0.5 * DEG)).toBe(coneJFactor(density, d, 0.5 * DEG));
     expect(() => ringJFactor(density, d, 0.5 * DEG, 0.5 * DEG)).toThrow(RangeError);
+  });
+});
+
+describe('cones off the Galactic Centre vs an independent 2-D scipy quadrature (jfactor-offset.json)', () => {
+  const rho = () => mwDensity('nfw', offset.rsKpc, offset.r0Kpc, offset.rhoLocalGeVcm3);
+  for (const c of offset.cases) {
+    // 1e-6 as for the centred cones (the two sides agree to ~2e-9)
+    it(`${c.coneDeg} deg cone, axis ${c.offsetDeg} deg from the centre (${c.what})`, () => {
+      close('J', offsetConeJFactor(rho(), offset.r0Kpc, c.coneDeg * DEG, c.offsetDeg * DEG), c.jGeV2cm5, 1e-6);
+    });
+  }
+
+  it('an offset of 0 is the centred cone; a 180-degree cone is the whole sky wherever it points (common practice, no source)', () => {
+    const r = rho();
+    expect(offsetConeJFactor(r, offset.r0Kpc, 3 * DEG, 0)).toBe(coneJFactor(r, offset.r0Kpc, 3 * DEG));
+    close('whole sky', offsetConeJFactor(r, offset.r0Kpc, Math.PI, 40 * DEG), coneJFactor(r, offset.r0Kpc, Math.PI), 1e-7);
+    // a cone whose edge touches the centre lies inside the centred cone of twice its radius
+    const touching = offsetConeJFactor(r, offset.r0Kpc, 2 * DEG, 2 * DEG);
+    expect(touching).toBeGreaterThan(0);
+    expect(touching).toBeLessThan(coneJFactor(r, offset.r0Kpc, 4 * DEG));
   });
 });
 

@@ -70,6 +70,8 @@ export const MALFORMED: readonly MalformedCase[] = [
   { what: 'unknown indirect key', path: 'indirect.boost', mutate: (s) => { s.indirect = { boost: 10 }; } },
   { what: 'ring wider inside than outside', path: 'targets[0].innerDeg', mutate: (s) => { s.targets[0].innerDeg = s.targets[0].coneDeg; } },
   { what: 'negative inner half-angle', path: 'targets[0].innerDeg', mutate: (s) => { s.targets[0].innerDeg = -1; } },
+  { what: 'offset cone that is also a ring', path: 'targets[0].offsetDeg', mutate: (s) => { s.targets[0].offsetDeg = 5; s.targets[0].innerDeg = 0.5; } },
+  { what: 'offset beyond the sky', path: 'targets[0].offsetDeg', mutate: (s) => { s.targets[0].offsetDeg = 190; } },
   { what: 'dispersion on the galactic centre', path: 'targets[0].velocityDispersionKmS', mutate: (s) => { s.targets[0].velocityDispersionKmS = 10; } },
 ];
 

@@ -87,6 +87,11 @@ export interface Target {
    * with innerDeg): a region off the Galactic Centre, or off a satellite's centre
    */
   readonly offsetDeg?: number;
+  /**
+   * galactic_centre only, optional: leave out Galactic latitudes |b| < maskLatDeg, degrees (0 to < 90;
+   * with a cone or a ring, not with offsetDeg), as analyses of the inner Galaxy mask the plane
+   */
+  readonly maskLatDeg?: number;
   /** satellite only: distance from the Sun, kpc */
   readonly distanceKpc?: number;
   /** satellite only: its own profile (with truncation radius) */

@@ -128,12 +128,15 @@ const targetSchema = z
     coneDeg: z.number().positive().max(180),
     innerDeg: z.number().min(0).max(180).optional(),
     offsetDeg: z.number().min(0).max(180).optional(),
+    maskLatDeg: z.number().min(0).lt(90).optional(),
     distanceKpc: positive.optional(),
     profile: profileSchema.optional(),
     velocityDispersionKmS: positive.lt(3000).optional(),
     energyGeV: z.tuple([positive, positive.nullable()]),
   })
   .superRefine((t, ctx) => {
+    if (t.maskLatDeg !== undefined && (t.kind !== 'galactic_centre' || t.offsetDeg !== undefined))
+      ctx.addIssue({ code: 'custom', path: ['maskLatDeg'], message: 'the Galactic plane is masked only in a cone or ring around the Galactic Centre (not a satellite, not with offsetDeg)', input: t.maskLatDeg, params: { allowed: 'absent, or a galactic_centre target without offsetDeg' } });
     if (t.offsetDeg !== undefined && t.innerDeg !== undefined)
       ctx.addIssue({ code: 'custom', path: ['offsetDeg'], message: 'an offset cone cannot also be a ring: give offsetDeg or innerDeg, not both', input: t.offsetDeg, params: { allowed: 'one of offsetDeg, innerDeg' } });
     if (t.innerDeg !== undefined && !(t.innerDeg < t.coneDeg))
@@ -191,7 +194,7 @@ const KNOWN_KEYS: Record<string, readonly string[]> = {
   galactic: ['profile', 'r0Kpc', 'rhoLocalGeVcm3', 'sigmaVKmS'],
   profile: ['kind', 'rsKpc', 'alpha', 'rhoSGeVcm3', 'rTruncKpc'],
   detectors: ['name', 'target', 'windowKeV', 'efficiency', 'exposureKgDay'],
-  targets: ['name', 'kind', 'coneDeg', 'innerDeg', 'offsetDeg', 'distanceKpc', 'profile', 'velocityDispersionKmS', 'energyGeV'],
+  targets: ['name', 'kind', 'coneDeg', 'innerDeg', 'offsetDeg', 'maskLatDeg', 'distanceKpc', 'profile', 'velocityDispersionKmS', 'energyGeV'],
   sampling: ['kind', 'count', 'seed'],
   hadronic: ['scalarSet', 'spinSet'],
   indirect: ['sommerfeld'],

@@ -32,7 +32,7 @@ import type { ModelPoint } from '../model.js';
 import type { ScanPhysicsSetup, Target } from '../setup.js';
 import { mediatorWidth } from '../widths.js';
 import { cascadePhotons, directPhotons, photonFluxCm2s, PhotonMemo, PHOTON_MEMO_MASSES, type Band } from './flux.js';
-import { CONE_REL_TOL, J_MAX_INTERVALS, LOS_REL_TOL, offsetConeJFactor, ringJFactor } from './jfactor.js';
+import { CONE_REL_TOL, J_MAX_INTERVALS, LOS_REL_TOL, maskedRingJFactor, offsetConeJFactor } from './jfactor.js';
 import type { HaloDensity } from './profiles.js';
 import { EINASTO_ALPHA_DEFAULT, GALACTIC_OUTER_RADIUS_KPC, galacticDensity, satelliteDensity, UNTRUNCATED_OUTER_RADIUS_RS } from './profiles.js';
 import {
@@ -113,6 +113,12 @@ function checkTarget(t: Target, path: string, issues: Issue[]): void {
   if (t.offsetDeg !== undefined && !(Number.isFinite(t.offsetDeg) && t.offsetDeg >= 0 && t.offsetDeg <= 180)) {
     issues.push({ code: 'out_of_range', path: `${path}.offsetDeg`, message: 'offset of the cone axis must be in [0, 180] degrees', seen: String(t.offsetDeg), allowed: '0 <= offsetDeg <= 180' });
   }
+  if (t.maskLatDeg !== undefined && !(Number.isFinite(t.maskLatDeg) && t.maskLatDeg >= 0 && t.maskLatDeg < 90)) {
+    issues.push({ code: 'out_of_range', path: `${path}.maskLatDeg`, message: 'masked latitude band must be in [0, 90) degrees', seen: String(t.maskLatDeg), allowed: '0 <= maskLatDeg < 90' });
+  }
+  if (t.maskLatDeg !== undefined && (t.kind !== 'galactic_centre' || t.offsetDeg !== undefined)) {
+    issues.push({ code: 'invalid', path: `${path}.maskLatDeg`, message: 'the Galactic plane is masked only in a cone or ring around the Galactic Centre (not a satellite, not with offsetDeg)', seen: String(t.maskLatDeg), allowed: 'absent, or a galactic_centre target without offsetDeg' });
+  }
   if (t.offsetDeg !== undefined && t.innerDeg !== undefined) {
     issues.push({ code: 'invalid', path: `${path}.offsetDeg`, message: 'an offset cone cannot also be a ring: give offsetDeg or innerDeg, not both', seen: `offsetDeg ${t.offsetDeg}, innerDeg ${t.innerDeg}`, allowed: 'one of offsetDeg, innerDeg' });
   }
@@ -156,8 +162,9 @@ export function prepareIndirect(setup: ScanPhysicsSetup): IndirectPrepared {
     const coneRad = (t.coneDeg * Math.PI) / 180;
     const innerRad = ((t.innerDeg ?? 0) * Math.PI) / 180;
     const offsetRad = ((t.offsetDeg ?? 0) * Math.PI) / 180;
+    const maskRad = ((t.maskLatDeg ?? 0) * Math.PI) / 180;
     const region = (density: HaloDensity, dKpc: number): number =>
-      offsetRad > 0 ? offsetConeJFactor(density, dKpc, coneRad, offsetRad) : ringJFactor(density, dKpc, innerRad, coneRad);
+      offsetRad > 0 ? offsetConeJFactor(density, dKpc, coneRad, offsetRad) : maskedRingJFactor(density, dKpc, innerRad, coneRad, maskRad);
     const jGeV2cm5 =
       t.kind === 'galactic_centre'
         ? region(galaxy!, setup.halo.galactic.r0Kpc)

@@ -2,7 +2,8 @@
  * J-factors: J(cone) = Int_cone dOmega Int_los rho^2 dl, in GeV^2 cm^-5, for a cone of half-angle
  * theta centred on a halo's centre (the Galactic Centre, or a satellite's centre), and for a ring
  * (annulus) between two such cones, as regions of interest that leave out the innermost degrees, and
- * for a cone whose axis points offsetDeg away from the centre (a region off the Galactic Centre).
+ * for a cone whose axis points offsetDeg away from the centre (a region off the Galactic Centre); a
+ * cone or ring around the Galactic Centre may leave out the band of Galactic latitudes |b| < b_m.
  *
  * Method (shared notes indirect.md B6): observer at distance D from the halo centre, direction at
  * angle psi from it; impact parameter b = D sin psi, tangent-point distance l* = D cos psi. The line
@@ -20,6 +21,9 @@
  * Delta phi = 2 acos[(cos theta - cos psi cos psi0)/(sin psi sin psi0)] (spherical law of cosines), in
  * psi = a + (b - a)(1 - cos pi u)/2, which smooths the square-root edges of Delta phi; when the centre
  * lies inside the cone, the full disc psi < theta - psi0 is a cone of its own (with its cusp mapping).
+ * With the plane masked, a direction at psi from the centre and azimuth phi from the plane has
+ * sin b = sin psi sin phi, so the circle at psi keeps the width 2 pi - 4 asin(sin b_m / sin psi) for
+ * psi > b_m (nothing below), integrated in the same smoothed variable from max(inner, b_m).
  * Both integrals use the adaptive Gauss-Kronrod of physics/numerics.
  *
  * Validity: spherical halos; no foreground (a satellite's J does not include the Milky-Way halo along
@@ -131,4 +135,31 @@ export function offsetConeJFactor(density: HaloDensity, dKpc: number, coneRad: n
     return dpsi * Math.sin(psi) * width(psi) * losIntegral(density, dKpc, psi);
   }, 0, 1, { relTol: CONE_REL_TOL, maxIntervals: J_MAX_INTERVALS }).value;
   return disc + value * KPC_CM;
+}
+
+/**
+ * J-factor of the ring innerRad < psi < outerRad around the Galactic Centre without the band of
+ * Galactic latitudes |b| < maskRad, GeV^2 cm^-5 (maskRad = 0: ringJFactor). The halo centre is taken
+ * to lie in the Galactic plane, as the Galactic Centre does.
+ */
+export function maskedRingJFactor(density: HaloDensity, dKpc: number, innerRad: number, outerRad: number, maskRad: number): number {
+  if (!(maskRad >= 0 && maskRad < Math.PI / 2)) throw new RangeError(`maskedRingJFactor: need 0 <= mask < pi/2, got ${maskRad}`);
+  if (maskRad === 0) return ringJFactor(density, dKpc, innerRad, outerRad);
+  if (!(innerRad >= 0 && outerRad > innerRad && outerRad <= Math.PI)) {
+    throw new RangeError(`maskedRingJFactor: need 0 <= inner < outer <= pi, got ${innerRad}, ${outerRad}`);
+  }
+  const edge = density.rMaxKpc < dKpc ? Math.asin(density.rMaxKpc / dKpc) : Math.PI;
+  const lo = Math.max(innerRad, maskRad);
+  // beyond pi - maskRad every direction lies within the band
+  const hi = Math.min(outerRad, edge, Math.PI - maskRad);
+  if (!(hi > lo)) return 0;
+  const sinMask = Math.sin(maskRad);
+  const value = integrate((u: number) => {
+    const psi = lo + ((hi - lo) * (1 - Math.cos(Math.PI * u))) / 2;
+    const dpsi = ((hi - lo) * Math.PI * Math.sin(Math.PI * u)) / 2;
+    const s = Math.sin(psi);
+    const width = s > sinMask ? 2 * Math.PI - 4 * Math.asin(sinMask / s) : 0;
+    return dpsi * s * width * losIntegral(density, dKpc, psi);
+  }, 0, 1, { relTol: CONE_REL_TOL, maxIntervals: J_MAX_INTERVALS }).value;
+  return value * KPC_CM;
 }

@@ -8,7 +8,7 @@ import { describe, expect, it } from 'vitest';
 import galactic from '../fixtures/indirect/jfactor-galactic.json' with { type: 'json' };
 import satellite from '../fixtures/indirect/jfactor-satellite.json' with { type: 'json' };
 import offset from '../fixtures/indirect/jfactor-offset.json' with { type: 'json' };
-import { coneJFactor, losIntegral, offsetConeJFactor, ringJFactor } from '../../physics/indirect/jfactor.js';
+import { coneJFactor, losIntegral, maskedRingJFactor, offsetConeJFactor, ringJFactor } from '../../physics/indirect/jfactor.js';
 import { galacticDensity, satelliteDensity, type HaloDensity } from '../../physics/indirect/profiles.js';
 import { BASE, SOLAR_MASS_GEV } from '../../physics/constants.js';
 import type { ProfileKind, Target } from '../../physics/setup.js';
@@ -87,6 +87,23 @@ describe('cones off the Galactic Centre vs an independent 2-D scipy quadrature (
     const touching = offsetConeJFactor(r, offset.r0Kpc, 2 * DEG, 2 * DEG);
     expect(touching).toBeGreaterThan(0);
     expect(touching).toBeLessThan(coneJFactor(r, offset.r0Kpc, 4 * DEG));
+  });
+});
+
+describe('Galactic-Centre regions without the plane vs a 2-D scipy quadrature in (l, b) (jfactor-offset.json)', () => {
+  const rho = () => mwDensity('nfw', offset.rsKpc, offset.r0Kpc, offset.rhoLocalGeVcm3);
+  for (const c of offset.masked) {
+    it(`${c.innerDeg}-${c.coneDeg} deg without |b| < ${c.maskLatDeg} deg`, () => {
+      close('J', maskedRingJFactor(rho(), offset.r0Kpc, c.innerDeg * DEG, c.coneDeg * DEG, c.maskLatDeg * DEG), c.jGeV2cm5, 1e-6);
+    });
+  }
+
+  it('no mask is the ring; a mask at least as wide as the region leaves nothing; a wider mask leaves less (common practice, no source)', () => {
+    const r = rho();
+    expect(maskedRingJFactor(r, offset.r0Kpc, 1 * DEG, 5 * DEG, 0)).toBe(ringJFactor(r, offset.r0Kpc, 1 * DEG, 5 * DEG));
+    expect(maskedRingJFactor(r, offset.r0Kpc, 0, 5 * DEG, 5 * DEG)).toBe(0);
+    const js = [0.5, 1, 2, 4].map((m) => maskedRingJFactor(r, offset.r0Kpc, 0, 10 * DEG, m * DEG));
+    for (let k = 1; k < js.length; k++) expect(js[k]!).toBeLessThan(js[k - 1]!);
   });
 });
 

@@ -72,6 +72,8 @@ export const MALFORMED: readonly MalformedCase[] = [
   { what: 'negative inner half-angle', path: 'targets[0].innerDeg', mutate: (s) => { s.targets[0].innerDeg = -1; } },
   { what: 'offset cone that is also a ring', path: 'targets[0].offsetDeg', mutate: (s) => { s.targets[0].offsetDeg = 5; s.targets[0].innerDeg = 0.5; } },
   { what: 'offset beyond the sky', path: 'targets[0].offsetDeg', mutate: (s) => { s.targets[0].offsetDeg = 190; } },
+  { what: 'plane mask on a satellite', path: 'targets[0].maskLatDeg', mutate: (s) => { s.targets[0] = { name: 'sat', kind: 'satellite', coneDeg: 0.5, maskLatDeg: 1, distanceKpc: 80, profile: { kind: 'nfw', rsKpc: 1, rhoSGeVcm3: 1 }, energyGeV: [1, 100] }; } },
+  { what: 'plane mask of 90 degrees', path: 'targets[0].maskLatDeg', mutate: (s) => { s.targets[0].maskLatDeg = 90; } },
   { what: 'dispersion on the galactic centre', path: 'targets[0].velocityDispersionKmS', mutate: (s) => { s.targets[0].velocityDispersionKmS = 10; } },
 ];
 

@@ -56,12 +56,12 @@ describe('spec validation', () => {
 
   it('ring and offset targets and a satellite dispersion reach the physics setup and round-trip; specs without them keep their form', () => {
     const base = resolvedSpecJson(parseSpec(baseSpec()).spec!);
-    expect(base).not.toMatch(/innerDeg|offsetDeg|velocityDispersionKmS/);
+    expect(base).not.toMatch(/innerDeg|offsetDeg|maskLatDeg|velocityDispersionKmS/);
     const sat = { name: 'sat', kind: 'satellite', coneDeg: 0.5, innerDeg: 0.1, distanceKpc: 80, velocityDispersionKmS: 9, profile: { kind: 'nfw', rsKpc: 0.4, rhoSGeVcm3: 2, rTruncKpc: 4 }, energyGeV: [1, 100] };
     const offCentre = { ...baseSpec().targets[0], name: 'off', coneDeg: 2, offsetDeg: 10 };
-    const { spec, issues } = parseSpec({ ...baseSpec(), targets: [{ ...baseSpec().targets[0], innerDeg: 0.3 }, sat, offCentre] });
+    const { spec, issues } = parseSpec({ ...baseSpec(), targets: [{ ...baseSpec().targets[0], innerDeg: 0.3, maskLatDeg: 0.2 }, sat, offCentre] });
     expect(issues).toEqual([]);
-    expect(spec!.setup.targets[0]).toMatchObject({ coneDeg: 1, innerDeg: 0.3 });
+    expect(spec!.setup.targets[0]).toMatchObject({ coneDeg: 1, innerDeg: 0.3, maskLatDeg: 0.2 });
     expect(spec!.setup.targets[2]).toMatchObject({ coneDeg: 2, offsetDeg: 10 });
     expect(spec!.setup.targets[1]).toMatchObject({ innerDeg: 0.1, velocityDispersionKmS: 9 });
     const json = resolvedSpecJson(spec!);

@@ -47,17 +47,22 @@ export function sommerfeldHulthen(vRel: number, alpha: number, mChiGeV: number, 
   const c = (6 * alpha * mChiGeV) / (Math.PI * Math.PI * mPhiGeV);
   const x = 2 * Math.PI * a * c;
   const d = c - a * a * c * c;
-  // numerator and denominator divided by e^x / 2, so that nothing overflows for large x
-  const ex = Math.exp(-x);
+  // numerator and denominator divided by e^x / 2, so that nothing overflows for large x, and the
+  // denominator written as a sum or product of terms that do not cancel (at small x and c its
+  // terms of order 1 would otherwise cancel down to ~x^2, leaving noise for S ~ 1)
   const num = -Math.expm1(-2 * x);
   let den: number;
   if (d >= 0) {
-    den = 1 + ex * ex - 2 * ex * Math.cos(2 * Math.PI * Math.sqrt(d));
+    // 1 + e^{-2x} - 2 e^{-x} cos t = (1 - e^{-x})^2 + 4 e^{-x} sin^2(t/2), t = 2 pi sqrt(d)
+    const oneMinus = -Math.expm1(-x);
+    const half = Math.sin(Math.PI * Math.sqrt(d));
+    den = oneMinus * oneMinus + 4 * Math.exp(-x) * half * half;
   } else {
-    // y = 2 pi sqrt(a^2 c^2 - c) < x; x - y in the rationalised form, which keeps its digits when
-    // both are large (the Coulomb side, where x - y -> pi/a)
+    // y = 2 pi sqrt(a^2 c^2 - c) < x: 1 + e^{-2x} - e^{y-x} - e^{-y-x} = (1 - e^{-(x-y)})(1 - e^{-(x+y)}),
+    // x - y in the rationalised form, which keeps its digits when both are large (the Coulomb side,
+    // where x - y -> pi/a)
     const xMinusY = (2 * Math.PI * c) / (a * c + Math.sqrt(-d));
-    den = 1 + ex * ex - Math.exp(-xMinusY) - Math.exp(xMinusY - 2 * x);
+    den = -Math.expm1(-xMinusY) * -Math.expm1(xMinusY - 2 * x);
   }
   return ((Math.PI / a) * num) / den;
 }

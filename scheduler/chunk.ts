@@ -24,6 +24,8 @@ export interface PreparedPhysics {
   readonly observableNames: readonly string[];
   /** numerical knobs used, stored with the scan for provenance */
   readonly knobs: unknown;
+  /** the real physics' indirect stage: each target's J-factor over its region (check prints them) */
+  readonly indirect?: { readonly targets: readonly { readonly name: string; readonly jGeV2cm5: number }[] };
 }
 
 /** The physics entry point (physics/evaluate.ts), injectable for tests of the mechanics. */

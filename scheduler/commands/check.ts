@@ -1,7 +1,7 @@
 /**
  * `darksieve check SPEC [--workers N] [--chunk N] [--json]`: validates a spec (every problem at once,
- * exit 2), then prints the plan (points, chunks, parameter ranges, observables, constraints) and an
- * estimated run time from timing a few real points. Writes nothing.
+ * exit 2), then prints the plan (points, chunks, parameter ranges, each target's J-factor,
+ * observables, constraints) and an estimated run time from timing a few real points. Writes nothing.
  */
 import { availableParallelism } from 'node:os';
 import type { Command } from 'commander';
@@ -59,6 +59,8 @@ export function registerCheck(program: Command): void {
         fixed,
         detectors: spec.setup.detectors.map((d) => d.name),
         targets: spec.setup.targets.map((t) => t.name),
+        /** J-factor of each target's region (cone, ring, offset cone, masked plane), GeV^2 cm^-5 */
+        j_factors_gev2_cm5: Object.fromEntries((prepared.indirect?.targets ?? []).map((t) => [t.name, t.jGeV2cm5])),
         observables: prepared.observableNames,
         constraints: constraints?.columns ?? [],
         calibration: { points: cal.points, ms_per_point: cal.msPerPoint, late_points: cal.latePoints, late_ms_per_point: cal.lateMsPerPoint, errors: cal.errors },
@@ -77,7 +79,8 @@ export function registerCheck(program: Command): void {
         'axes:',
         ...report.axes.map((a) => `  ${a}`),
         `fixed: ${fixed.join(', ')}`,
-        `detectors: ${report.detectors.join(', ') || '(none)'}; targets: ${report.targets.join(', ') || '(none)'}`,
+        `detectors: ${report.detectors.join(', ') || '(none)'}`,
+        `targets: ${report.targets.map((name) => (name in report.j_factors_gev2_cm5 ? `${name} (J = ${report.j_factors_gev2_cm5[name]!.toExponential(3)} GeV^2 cm^-5)` : name)).join(', ') || '(none)'}`,
         `observables: ${prepared.observableNames.length} numeric columns + flags`,
         `constraints: ${report.constraints.join(', ') || '(none)'}`,
         ...(constraints?.warnings ?? []).map((w) => `warning: ${w}`),

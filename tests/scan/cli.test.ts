@@ -115,4 +115,28 @@ describe('darksieve run through the CLI', () => {
     expect(plan.estimated_s as number).toBeGreaterThan(0);
     expect(plan.axes).toEqual(['mediator: 2 values (vector, scalar)', 'm_chi: 5 .. 3000 (log, 40 steps)', 'm_med: 10 .. 5000 (log, 40 steps)']);
   });
+
+  it('check prints the J-factor of each target region (cone, ring, offset cone) as the independent scipy fixtures give them', async () => {
+    const galactic = JSON.parse(readFileSync(new URL('../fixtures/indirect/jfactor-galactic.json', import.meta.url), 'utf8')) as { cases: { label: string; coneDeg: number; jGeV2cm5: number }[] };
+    const offset = JSON.parse(readFileSync(new URL('../fixtures/indirect/jfactor-offset.json', import.meta.url), 'utf8')) as { cases: { coneDeg: number; offsetDeg: number; jGeV2cm5: number }[] };
+    const cone = (deg: number) => galactic.cases.find((c) => c.label.includes('notes baseline') && c.coneDeg === deg)!.jGeV2cm5;
+    // the fixtures' halo: NFW r_s = 20 kpc, R0 = 8.5 kpc, rho0 = 0.3 GeV/cm^3, out to 200 kpc
+    const regions = writeSpec(tmp.dir, 'regions.json', {
+      ...TRIAL_SPEC, name: 'regions',
+      halo: { galactic: { profile: { kind: 'nfw', rsKpc: 20 }, r0Kpc: 8.5, rhoLocalGeVcm3: 0.3 } },
+      targets: [
+        { name: 'cone', kind: 'galactic_centre', coneDeg: 1, energyGeV: [1, 100] },
+        { name: 'ring', kind: 'galactic_centre', coneDeg: 1, innerDeg: 0.1, energyGeV: [1, 100] },
+        { name: 'off', kind: 'galactic_centre', coneDeg: 1, offsetDeg: 3, energyGeV: [1, 100] },
+      ],
+    });
+    const r = await runCli(['check', regions, '--chunk', '200', '--json'], { cwd: tmp.dir });
+    expect(r.code, r.stderr).toBe(0);
+    const j = (JSON.parse(r.stdout) as { j_factors_gev2_cm5: Record<string, number> }).j_factors_gev2_cm5;
+    // 1e-6 as in tests/indirect/jfactor.test.ts
+    const close = (got: number, want: number) => expect(Math.abs(got / want - 1), `${got} vs ${want}`).toBeLessThan(1e-6);
+    close(j.cone!, cone(1));
+    close(j.ring!, cone(1) - cone(0.1));
+    close(j.off!, offset.cases.find((c) => c.coneDeg === 1 && c.offsetDeg === 3)!.jGeV2cm5);
+  });
 });

@@ -14,23 +14,25 @@
  * the chord, and directions with b >= r_max see nothing. The cone is
  * J = 2 pi Int_0^theta' sin psi J_los(psi) dpsi with psi = theta' x^2 (the integrand stays finite as
  * psi -> 0 for a cusp; psi = 0 is never evaluated), theta' = min(theta, asin(r_max/D)) when the
- * observer is outside the halo. A ring theta_in < psi < theta_out is integrated directly in psi
- * (no cusp inside it; subtracting two cones would lose digits for thin rings). An offset cone of
- * half-angle theta with its axis at psi0 from the centre is integrated over psi in
- * [|psi0 - theta|, psi0 + theta] with the azimuthal width of the cone at each psi,
- * Delta phi = 2 acos[(cos theta - cos psi cos psi0)/(sin psi sin psi0)] (spherical law of cosines), in
- * psi = a + (b - a)(1 - cos pi u)/2, which smooths the square-root edges of Delta phi; when the centre
- * lies inside the cone, the full disc psi < theta - psi0 is a cone of its own (with its cusp mapping).
- * With the plane masked, a direction at psi from the centre and azimuth phi from the plane has
- * sin b = sin psi sin phi, so the circle at psi keeps the width 2 pi - 4 asin(sin b_m / sin psi) for
- * psi > b_m (nothing below), integrated in the same smoothed variable from max(inner, b_m).
+ * observer is outside the halo. Regions away from the centre's cusp are integrated as
+ * Int sin psi Delta phi(psi) J_los(psi) dpsi, Delta phi the azimuthal width of the region at psi, in
+ * psi = a + (b - a)(1 - cos pi u)/2, which smooths square-root edges of Delta phi at both ends:
+ *  - a ring theta_in < psi < theta_out: Delta phi = 2 pi (subtracting two cones would lose digits for
+ *    thin rings);
+ *  - a cone of half-angle theta with its axis at psi0 from the centre: psi in [|psi0 - theta|,
+ *    psi0 + theta], Delta phi = 2 acos[(cos theta - cos psi cos psi0)/(sin psi sin psi0)] (spherical
+ *    law of cosines); when the centre lies inside the cone, the full disc psi < theta - psi0 is a
+ *    centred cone of its own (with its cusp mapping);
+ *  - the plane masked (|b| < b_m left out): a direction at psi from the centre and azimuth phi from the
+ *    plane has sin b = sin psi sin phi, so Delta phi = 2 pi - 4 asin(sin b_m / sin psi) for psi > b_m.
  * Both integrals use the adaptive Gauss-Kronrod of physics/numerics.
  *
  * Validity: spherical halos; no foreground (a satellite's J does not include the Milky-Way halo along
  * the same line of sight, as is usual for dwarf analyses, indirect.md B6 note). Accuracy: relative
  * ~1e-8 (LOS_REL_TOL, CONE_REL_TOL); checked against an independent scipy quadrature in the plain
  * path length (tests/fixtures/indirect/make_fixtures.py), the B6 table and the closed-form total of a
- * truncated NFW halo, J_tot = 4 pi rho_s^2 r_s^3 [1 - (1+c)^-3] / (3 d^2).
+ * truncated NFW halo, J_tot = 4 pi rho_s^2 r_s^3 [1 - (1+c)^-3] / (3 d^2); offset cones and masked
+ * regions against 2-D scipy quadratures in other coordinates (make_offset_fixtures.py).
  *
  * References: Navarro, Frenk & White 1996 (ApJ 462, 563); indirect.md B5/B6 (definitions and the
  * robust LOS scheme); Evans, Sanders & Geringer-Sameth 2016 (PRD 93, 103512) for J(theta) of cusps.
@@ -77,17 +79,37 @@ export function losIntegral(density: HaloDensity, dKpc: number, psi: number): nu
   return side(density, b, -lStar, half);
 }
 
+/** Largest angle from the halo centre at which a line of sight meets the halo (pi when the observer is inside it). */
+function visibleEdge(density: HaloDensity, dKpc: number): number {
+  return density.rMaxKpc < dKpc ? Math.asin(density.rMaxKpc / dKpc) : Math.PI;
+}
+
 /** J-factor of a cone of half-angle coneRad around the halo centre, GeV^2 cm^-5. */
 export function coneJFactor(density: HaloDensity, dKpc: number, coneRad: number): number {
   if (!(coneRad > 0 && coneRad <= Math.PI)) throw new RangeError(`coneJFactor: cone half-angle must be in (0, pi], got ${coneRad}`);
-  const edge = density.rMaxKpc < dKpc ? Math.asin(density.rMaxKpc / dKpc) : Math.PI;
-  const theta = Math.min(coneRad, edge);
+  const theta = Math.min(coneRad, visibleEdge(density, dKpc));
   const value = integrate((x: number) => {
     const psi = theta * x * x;
     return 2 * theta * x * Math.sin(psi) * losIntegral(density, dKpc, psi);
   }, 0, 1, { relTol: CONE_REL_TOL, maxIntervals: J_MAX_INTERVALS }).value;
   return 2 * Math.PI * value * KPC_CM;
 }
+
+/**
+ * Int_lo^hi sin psi width(psi) J_los(psi) dpsi in GeV^2 cm^-5, width(psi) the azimuthal extent of the
+ * region at angle psi from the centre (2 pi for a full circle), in psi = lo + (hi - lo)(1 - cos pi u)/2,
+ * which smooths square-root edges of the width at both ends. For regions away from the centre's cusp.
+ */
+function azimuthalIntegral(density: HaloDensity, dKpc: number, lo: number, hi: number, width: (psi: number) => number): number {
+  const value = integrate((u: number) => {
+    const psi = lo + ((hi - lo) * (1 - Math.cos(Math.PI * u))) / 2;
+    const dpsi = ((hi - lo) * Math.PI * Math.sin(Math.PI * u)) / 2;
+    return dpsi * Math.sin(psi) * width(psi) * losIntegral(density, dKpc, psi);
+  }, 0, 1, { relTol: CONE_REL_TOL, maxIntervals: J_MAX_INTERVALS }).value;
+  return value * KPC_CM;
+}
+
+const FULL_CIRCLE = (): number => 2 * Math.PI;
 
 /**
  * J-factor of the ring innerRad < psi < outerRad around the halo centre, GeV^2 cm^-5 (innerRad = 0:
@@ -98,13 +120,8 @@ export function ringJFactor(density: HaloDensity, dKpc: number, innerRad: number
     throw new RangeError(`ringJFactor: need 0 <= inner < outer <= pi, got ${innerRad}, ${outerRad}`);
   }
   if (innerRad === 0) return coneJFactor(density, dKpc, outerRad);
-  const edge = density.rMaxKpc < dKpc ? Math.asin(density.rMaxKpc / dKpc) : Math.PI;
-  const outer = Math.min(outerRad, edge);
-  if (!(outer > innerRad)) return 0;
-  const value = integrate((psi: number) => Math.sin(psi) * losIntegral(density, dKpc, psi), innerRad, outer, {
-    relTol: CONE_REL_TOL, maxIntervals: J_MAX_INTERVALS,
-  }).value;
-  return 2 * Math.PI * value * KPC_CM;
+  const outer = Math.min(outerRad, visibleEdge(density, dKpc));
+  return outer > innerRad ? azimuthalIntegral(density, dKpc, innerRad, outer, FULL_CIRCLE) : 0;
 }
 
 /**
@@ -118,23 +135,16 @@ export function offsetConeJFactor(density: HaloDensity, dKpc: number, coneRad: n
   if (offsetRad === 0) return coneJFactor(density, dKpc, coneRad);
   // the full disc around the centre, when the cone holds it
   const disc = coneRad > offsetRad ? coneJFactor(density, dKpc, coneRad - offsetRad) : 0;
-  const edge = density.rMaxKpc < dKpc ? Math.asin(density.rMaxKpc / dKpc) : Math.PI;
   const lo = Math.abs(offsetRad - coneRad);
-  const hi = Math.min(offsetRad + coneRad, Math.PI, edge);
+  const hi = Math.min(offsetRad + coneRad, Math.PI, visibleEdge(density, dKpc));
   if (!(hi > lo)) return disc;
   const cosTheta = Math.cos(coneRad);
   const cosOffset = Math.cos(offsetRad);
   const sinOffset = Math.sin(offsetRad);
-  const width = (psi: number): number => {
+  return disc + azimuthalIntegral(density, dKpc, lo, hi, (psi) => {
     const c = (cosTheta - Math.cos(psi) * cosOffset) / (Math.sin(psi) * sinOffset);
     return c <= -1 ? 2 * Math.PI : c >= 1 ? 0 : 2 * Math.acos(c);
-  };
-  const value = integrate((u: number) => {
-    const psi = lo + ((hi - lo) * (1 - Math.cos(Math.PI * u))) / 2;
-    const dpsi = ((hi - lo) * Math.PI * Math.sin(Math.PI * u)) / 2;
-    return dpsi * Math.sin(psi) * width(psi) * losIntegral(density, dKpc, psi);
-  }, 0, 1, { relTol: CONE_REL_TOL, maxIntervals: J_MAX_INTERVALS }).value;
-  return disc + value * KPC_CM;
+  });
 }
 
 /**
@@ -148,18 +158,13 @@ export function maskedRingJFactor(density: HaloDensity, dKpc: number, innerRad: 
   if (!(innerRad >= 0 && outerRad > innerRad && outerRad <= Math.PI)) {
     throw new RangeError(`maskedRingJFactor: need 0 <= inner < outer <= pi, got ${innerRad}, ${outerRad}`);
   }
-  const edge = density.rMaxKpc < dKpc ? Math.asin(density.rMaxKpc / dKpc) : Math.PI;
   const lo = Math.max(innerRad, maskRad);
   // beyond pi - maskRad every direction lies within the band
-  const hi = Math.min(outerRad, edge, Math.PI - maskRad);
+  const hi = Math.min(outerRad, visibleEdge(density, dKpc), Math.PI - maskRad);
   if (!(hi > lo)) return 0;
   const sinMask = Math.sin(maskRad);
-  const value = integrate((u: number) => {
-    const psi = lo + ((hi - lo) * (1 - Math.cos(Math.PI * u))) / 2;
-    const dpsi = ((hi - lo) * Math.PI * Math.sin(Math.PI * u)) / 2;
+  return azimuthalIntegral(density, dKpc, lo, hi, (psi) => {
     const s = Math.sin(psi);
-    const width = s > sinMask ? 2 * Math.PI - 4 * Math.asin(sinMask / s) : 0;
-    return dpsi * s * width * losIntegral(density, dKpc, psi);
-  }, 0, 1, { relTol: CONE_REL_TOL, maxIntervals: J_MAX_INTERVALS }).value;
-  return value * KPC_CM;
+    return s > sinMask ? 2 * Math.PI - 4 * Math.asin(sinMask / s) : 0;
+  });
 }

@@ -12,7 +12,7 @@
  */
 import { availableParallelism } from 'node:os';
 import { Worker } from 'node:worker_threads';
-import { mergeCalibrations, type Calibration, type ChunkResult } from './chunk.js';
+import { knownBlocks, mergeCalibrations, packKnownRows, type Calibration, type ChunkResult, type KnownBlock, type KnownRows } from './chunk.js';
 import { InvalidInputError, type Issue } from '../physics/issue.js';
 import { OutcomeQueue } from './outcome-queue.js';
 import { ChunkTickets } from './chunk-tickets.js';
@@ -63,7 +63,7 @@ async function threadEntry(physicsModule: string | undefined): Promise<URL> {
 }
 
 type ThreadMessage =
-  | { type: 'ready'; observableNames: string[]; knobsJson: string; calibration: Calibration | null; evaluated: ChunkResult[] }
+  | { type: 'ready'; observableNames: string[]; knobsJson: string; calibration: Calibration | null; known: KnownRows }
   | { type: 'fatal'; error: string; issues?: Issue[] }
   | { type: 'result'; result: ChunkResult; ticket: number }
   | { type: 'error'; chunk: number; error: string; ticket: number }
@@ -103,7 +103,7 @@ export class EmbeddedPool implements Transport {
   private readonly attempts = new Map<number, number>();
   private readonly outcomes = new OutcomeQueue<ChunkOutcome>((o) => o);
   /** points the threads evaluated while calibrating: disjoint blocks in ascending firstId order */
-  private known: ChunkResult[] = [];
+  private known: KnownBlock[] = [];
   private readonly tickets: ChunkTickets;
   private closed = false;
 
@@ -123,7 +123,7 @@ export class EmbeddedPool implements Transport {
   async open(work: ScanWork): Promise<void> {
     if (this.work) throw new Error('the pool is already open');
     this.work = work;
-    const evaluated: ChunkResult[] = [];
+    const evaluated: KnownBlock[] = [];
     const started = await Promise.allSettled(Array.from({ length: this.workers }, (_, i) =>
       this.spawn(this.calibrateMs > 0 ? { ms: this.calibrateMs / this.workers, first: i, step: this.workers } : null, evaluated)));
     const failed = started.find((s): s is PromiseRejectedResult => s.status === 'rejected');
@@ -161,7 +161,7 @@ export class EmbeddedPool implements Transport {
    * Starts one thread and resolves when its physics is prepared (and calibrated, when asked; the
    * calibrated blocks are appended to `evaluated`).
    */
-  private async spawn(calibrate: { ms: number; first: number; step: number } | null = null, evaluated: ChunkResult[] = []): Promise<PoolStarted> {
+  private async spawn(calibrate: { ms: number; first: number; step: number } | null = null, evaluated: KnownBlock[] = []): Promise<PoolStarted> {
     const work = this.work!;
     const entry = await threadEntry(this.physicsModule);
     if (this.closed) throw new TransportStartError('the pool closed while a thread was starting');
@@ -183,7 +183,7 @@ export class EmbeddedPool implements Transport {
             return;
           }
           ready = true;
-          evaluated.push(...msg.evaluated);
+          evaluated.push(...knownBlocks(msg.known));
           this.slots.add(slot);
           resolve({ knobsJson: msg.knobsJson, calibration: msg.calibration });
           this.feed();
@@ -287,8 +287,8 @@ export class EmbeddedPool implements Transport {
     slot.worker.postMessage({ type: 'chunk', range, known: this.knownWithin(range), ticket });
   }
 
-  /** The calibrated blocks that hold ids of `range` (one may start before it or end after it). */
-  private knownWithin(range: ChunkRange): ChunkResult[] {
+  /** The calibrated rows of the blocks that hold ids of `range` (one may start before it or end after it), packed. */
+  private knownWithin(range: ChunkRange): KnownRows {
     const end = range.firstId + range.n;
     // the first block ending after the range's first id, by bisection
     let lo = 0;
@@ -299,9 +299,9 @@ export class EmbeddedPool implements Transport {
       if (b.firstId + b.n <= range.firstId) lo = mid + 1;
       else hi = mid;
     }
-    const out: ChunkResult[] = [];
+    const out: KnownBlock[] = [];
     for (let k = lo; k < this.known.length && this.known[k]!.firstId < end; k++) out.push(this.known[k]!);
-    return out;
+    return packKnownRows(out);
   }
 
   private deliver(outcome: ChunkOutcome): void {
@@ -314,8 +314,8 @@ export class EmbeddedPool implements Transport {
  * Evaluated blocks as disjoint blocks in ascending firstId order (threads calibrating a small scan
  * sample the same ids more than once; a block overlapping one already kept is dropped).
  */
-export function disjointBlocks(blocks: readonly ChunkResult[]): ChunkResult[] {
-  const out: ChunkResult[] = [];
+export function disjointBlocks<T extends { readonly firstId: number; readonly n: number }>(blocks: readonly T[]): T[] {
+  const out: T[] = [];
   let end = -Infinity;
   for (const b of [...blocks].sort((x, y) => x.firstId - y.firstId || y.n - x.n)) {
     if (b.n === 0 || b.firstId < end) continue;

@@ -1,21 +1,21 @@
 /**
  * Worker thread of the embedded pool: prepares the scan's physics once (and, when asked, times a
  * calibration of the cost per point, which also warms this thread's compiled code; the calibrated
- * blocks go back with 'ready' so that the pool can hand them out with the chunks that hold their ids),
+ * rows go back with 'ready', packed, so that the pool can hand them out with the chunks that hold their ids),
  * then evaluates the chunks the pool sends and posts columnar results back. The typed arrays are copied, not
  * transferred: a chunk's columns are a few hundred kB (well under a millisecond to copy), while
  * transferring them made this thread's next chunks ~8 % slower to evaluate (thread CPU per 1500-point
  * chunk, medians of 8 alternating trials: 417 ms transferred, 382 ms copied).
  *
- * Messages in:  { type: 'chunk', range, known, ticket }   (known: evaluated blocks within the range,
- *               by firstId; ticket: the chunk's cell in workerData.tickets, scheduler/chunk-tickets.ts)
- * Messages out: { type: 'ready', observableNames, knobsJson, calibration, evaluated } | { type: 'fatal', error, issues? }
+ * Messages in:  { type: 'chunk', range, known, ticket }   (known: KnownRows of evaluated ids within the
+ *               range, by firstId; ticket: the chunk's cell in workerData.tickets, scheduler/chunk-tickets.ts)
+ * Messages out: { type: 'ready', observableNames, knobsJson, calibration, known } | { type: 'fatal', error, issues? }
  *               { type: 'result', result, ticket } | { type: 'error', chunk, error, ticket }
  *               { type: 'skipped', chunk, ticket }   (the pool took the chunk back before it started)
  * `issues` comes with a fatal error when prepare() refused the scan's setup (bad input, not a crash).
  */
 import { parentPort, workerData } from 'node:worker_threads';
-import { ChunkEvaluator, calibrateEvaluator, loadPhysicsEngine, setupIssues, type ChunkResult, type PhysicsEngine } from '../scheduler/chunk.js';
+import { ChunkEvaluator, calibrateEvaluator, loadPhysicsEngine, packKnownRows, setupIssues, type ChunkResult, type KnownRows, type PhysicsEngine } from '../scheduler/chunk.js';
 import type { ChunkRange } from '../scheduler/plan.js';
 import { claimTicket } from '../scheduler/chunk-tickets.js';
 
@@ -52,14 +52,15 @@ try {
   const rounds = data.calibrateRounds ?? { first: 0, step: 1 };
   const evaluated: ChunkResult[] = [];
   const calibration = data.calibrateMs ? calibrateEvaluator(evaluator, data.calibrateMs, undefined, undefined, rounds.first, rounds.step, evaluated) : null;
-  port.postMessage({ type: 'ready', observableNames: evaluator.prepared.observableNames, knobsJson: JSON.stringify(evaluator.prepared.knobs ?? {}), calibration, evaluated });
+  const known = packKnownRows(evaluated.map((r) => ({ firstId: r.firstId, n: r.n, rows: r, start: 0 })));
+  port.postMessage({ type: 'ready', observableNames: evaluator.prepared.observableNames, knobsJson: JSON.stringify(evaluator.prepared.knobs ?? {}), calibration, known });
 } catch (err) {
   port.postMessage({ type: 'fatal', error: describe(err) });
   process.exit(1);
 }
 
 const tickets = new Int32Array(data.tickets);
-port.on('message', (msg: { type: 'chunk'; range: ChunkRange; known: ChunkResult[]; ticket: number }) => {
+port.on('message', (msg: { type: 'chunk'; range: ChunkRange; known: KnownRows; ticket: number }) => {
   if (msg.type !== 'chunk') return;
   if (!claimTicket(tickets, msg.ticket)) {
     port.postMessage({ type: 'skipped', chunk: msg.range.chunk, ticket: msg.ticket });

@@ -267,14 +267,18 @@ describe('calibrated points handed back with their chunks', () => {
     const ev = await evaluatorFor(FAKE_PHYSICS);
     const fresh = ev.evaluate({ chunk: 3, firstId: 40, n: 60 });
     // blocks across the first id, inside, and across the end; ids 96..103 include g_q = 1 (flagged errors)
-    const known = [{ chunk: 0, firstId: 36, n: 8 }, { chunk: 0, firstId: 60, n: 5 }, { chunk: 0, firstId: 96, n: 8 }].map((r) => ev.evaluate(r));
+    const { knownBlocks, packKnownRows } = await import('../../scheduler/chunk.js');
+    const blocks = [{ chunk: 0, firstId: 36, n: 8 }, { chunk: 0, firstId: 60, n: 5 }, { chunk: 0, firstId: 96, n: 8 }].map((r) => ev.evaluate(r));
+    // packed as a thread packs them, then re-packed as the pool does for a chunk (here: all of them)
+    const packed = packKnownRows(blocks.map((r) => ({ firstId: r.firstId, n: r.n, rows: r, start: 0 })));
+    expect(packed.columns.every((c) => c.length === 21)).toBe(true);
+    const known = packKnownRows(knownBlocks(packed));
     const reused = ev.evaluate({ chunk: 3, firstId: 40, n: 60 }, known);
     expect(columnBits(reused)).toEqual(columnBits(fresh));
     expect(fresh.columns.at(-1)!.some((f) => typeof f === 'string' && f.startsWith('error='))).toBe(true);
-    // the copies come from the blocks: a value marked in a block shows up in the chunk
-    const marked = known.map((b) => ({ ...b, columns: b.columns.map((c) => (c instanceof Float64Array ? Float64Array.from(c) : [...c])) }));
-    (marked[1]!.columns[0] as Float64Array)[2] = -12345;
-    expect((ev.evaluate({ chunk: 3, firstId: 40, n: 60 }, marked).columns[0] as Float64Array)[62 - 40]).toBe(-12345);
+    // the copies come from the known rows: a value marked there shows up in the chunk (id 62: row 8 + 2)
+    (known.columns[0] as Float64Array)[8 + 2] = -12345;
+    expect((ev.evaluate({ chunk: 3, firstId: 40, n: 60 }, known).columns[0] as Float64Array)[62 - 40]).toBe(-12345);
   });
 
   it('overlapping calibration blocks become disjoint blocks in id order', async () => {

@@ -23,8 +23,9 @@
  * 1/r^3, to which the formula does not apply (indirect.md B8): no factor there.
  *
  * Validity: s-wave only; the velocity-dependent rest of sigma v is not enhanced (p-wave has a factor of
- * its own, Cassel 2010, not included). The Hulthen form is within ~1 % of the exact Yukawa factor away
- * from the resonances c ~ n^2 and 10-20 % off near them (indirect.md B8 table). No bound-state
+ * its own, Cassel 2010, not included). The Hulthen form is within a few per cent of the exact Yukawa
+ * factor away from the resonances c ~ n^2 (0.1-2.6 % in the indirect.md B8 table) and 10-20 % off
+ * near them. No bound-state
  * formation; the relic abundance is computed without any factor. Accuracy of the average:
  * SOMMERFELD_REL_TOL, against scipy quad (tests/fixtures/indirect/sommerfeld.json).
  */

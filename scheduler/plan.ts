@@ -87,7 +87,7 @@ export function decodeResolvedSpec(json: string): ScanSpec {
     name: string; model: Record<string, ParamValue>; axes: Record<string, Record<string, unknown>>; sampling: Sampling;
     halo: ScanPhysicsSetup['halo']; hadronic: ScanPhysicsSetup['hadronic']; detectors: ScanPhysicsSetup['detectors'];
     targets: (Omit<Target, 'energyGeV'> & { energyGeV: [number, number | null] })[]; constraints: Constraint[];
-    indirect?: { sommerfeld?: ScanPhysicsSetup['sommerfeld'] };
+    indirect?: { sommerfeld?: ScanPhysicsSetup['sommerfeld']; yieldTables?: ScanPhysicsSetup['yieldTables'] };
   };
   const axes = Object.entries(doc.axes).map(([param, a]): Axis => {
     if ('equals' in a) return { kind: 'equals', param, expression: a.equals as string };
@@ -100,6 +100,7 @@ export function decodeResolvedSpec(json: string): ScanSpec {
       halo: doc.halo, hadronic: doc.hadronic, detectors: doc.detectors,
       targets: doc.targets.map((t) => ({ ...t, energyGeV: [t.energyGeV[0], t.energyGeV[1] ?? Infinity] as const })),
       ...(doc.indirect?.sommerfeld ? { sommerfeld: doc.indirect.sommerfeld } : {}),
+      ...(doc.indirect?.yieldTables ? { yieldTables: doc.indirect.yieldTables } : {}),
     },
   };
 }

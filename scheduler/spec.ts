@@ -22,14 +22,17 @@
  *    `{kind: "latin_hypercube", count, seed}`; seed is an integer in [0, 2^53).
  *  - `halo`: partial override of physics/setup.ts DEFAULT_HALO (same field names and units).
  *  - `hadronic`: partial override of DEFAULT_HADRONIC.
- *  - `indirect`: `{sommerfeld: "off"|"hulthen"}` (default "off"): the Sommerfeld factor of
- *    physics/indirect/sommerfeld.ts on the s-wave part of sigma v today.
+ *  - `indirect`: `{sommerfeld: "off"|"hulthen", yieldTables: {<final state>: rows or CSV file}}`:
+ *    the Sommerfeld factor of physics/indirect/sommerfeld.ts on the s-wave part of sigma v today
+ *    (default "off"), and photon-yield tables that replace the built-in fits (files are read by
+ *    loadSpecFile, relative to the spec, and carried inline in the resolved spec).
  *  - `detectors`, `targets`: lists of physics/setup.ts Detector / Target; a target's energy band
  *    upper edge may be `null` for "no upper edge" (Infinity).
  *  - `constraints`: list validated by the constraints schema (scheduler/constraints).
  */
 import { createHash } from 'node:crypto';
 import { readFileSync } from 'node:fs';
+import path from 'node:path';
 import { z } from 'zod';
 import type { Issue } from '../physics/issue.js';
 import { InvalidInputError } from '../physics/issue.js';
@@ -48,6 +51,8 @@ import {
 import { compileExpression } from './expressions.js';
 import { axisSize, Plan, type Axis, type CompiledEquals, type EqualsAxis, type ParamValue, type Sampling, type ScanSpec } from './plan.js';
 import { constraintsSchema } from './constraints/schema.js';
+import { MAX_CURVE_ROWS, parseCurve } from './constraints/curve-file.js';
+import { checkYieldTables } from '../physics/indirect/yields.js';
 
 export type { Axis, EqualsAxis, ParamValue, RangeAxis, Sampling, ScanSpec, ValuesAxis } from './plan.js';
 
@@ -180,7 +185,13 @@ const topSchema = z.strictObject({
   sampling: samplingSchema.default({ kind: 'grid' }),
   halo: haloSchema.default({}),
   hadronic: z.strictObject({ scalarSet: z.enum(['A', 'B']).optional(), spinSet: z.string().min(1).optional() }).default({}),
-  indirect: z.strictObject({ sommerfeld: z.enum(['off', 'hulthen']).default('off') }).default({ sommerfeld: 'off' }),
+  indirect: z
+    .strictObject({
+      sommerfeld: z.enum(['off', 'hulthen']).default('off'),
+      // per final state: rows [x, dN/dx] inline, or (in a spec file) a CSV file read by loadSpecFile
+      yieldTables: z.record(z.string(), z.union([z.string().min(1), z.array(z.tuple([z.number(), z.number()])).max(MAX_CURVE_ROWS)])).optional(),
+    })
+    .default({ sommerfeld: 'off' }),
   detectors: z.array(detectorSchema).max(50).default([]),
   targets: z.array(targetSchema).max(50).default([]),
   constraints: constraintsSchema.default([]),
@@ -197,7 +208,7 @@ const KNOWN_KEYS: Record<string, readonly string[]> = {
   targets: ['name', 'kind', 'coneDeg', 'innerDeg', 'offsetDeg', 'maskLatDeg', 'distanceKpc', 'profile', 'velocityDispersionKmS', 'energyGeV'],
   sampling: ['kind', 'count', 'seed'],
   hadronic: ['scalarSet', 'spinSet'],
-  indirect: ['sommerfeld'],
+  indirect: ['sommerfeld', 'yieldTables'],
 };
 
 // ------------------------------------------------------------------ issue helpers
@@ -477,6 +488,7 @@ export function parseSpec(raw: unknown): { spec?: ScanSpec; issues: Issue[] } {
   }
   if (input.sampling.kind !== 'grid' && sampled.length === 0)
     issues.push({ code: 'invalid', path: 'sampling.kind', message: `${input.sampling.kind} sampling needs at least one range or values axis`, seen: input.sampling.kind, allowed: 'grid, or add an axis' });
+  const yieldTables = resolveYieldTables(input.indirect.yieldTables, issues);
   const seenNames = new Map<string, string>();
   input.detectors.forEach((d, i) => noteName(d.name, formatPath(['detectors', i, 'name']), seenNames, issues));
   input.targets.forEach((t, i) => noteName(t.name, formatPath(['targets', i, 'name']), seenNames, issues));
@@ -487,11 +499,57 @@ export function parseSpec(raw: unknown): { spec?: ScanSpec; issues: Issue[] } {
     detectors: input.detectors.map((d): Detector => ({ ...d })),
     targets: input.targets.map((t): Target => dropUndefined({ ...t, energyGeV: [t.energyGeV[0], t.energyGeV[1] ?? Infinity] as const })),
     ...(input.indirect.sommerfeld === 'hulthen' ? { sommerfeld: 'hulthen' as const } : {}),
+    ...(yieldTables ? { yieldTables } : {}),
   };
   return {
     spec: { name: input.name, model, axes, sampling: input.sampling, setup, constraints: input.constraints },
     issues,
   };
+}
+
+/**
+ * The user's photon-yield tables, checked as the physics will use them (final state, x = E/m_chi
+ * increasing in (0, 1], dN/dx >= 0); a file name left here was not read (only loadSpecFile reads them).
+ */
+function resolveYieldTables(
+  tables: Readonly<Record<string, string | readonly (readonly [number, number])[]>> | undefined, issues: Issue[],
+): Readonly<Record<string, readonly (readonly [number, number])[]>> | undefined {
+  if (tables === undefined) return undefined;
+  const rows: Record<string, readonly (readonly [number, number])[]> = {};
+  for (const [channel, table] of Object.entries(tables)) {
+    if (typeof table === 'string') {
+      issues.push({ code: 'unread_file', path: `indirect.yieldTables.${channel}`, message: 'a yield-table file is read only when the spec is loaded from its file', seen: table, allowed: 'inline [[x, dN/dx], ...] rows, or a spec file' });
+    } else rows[channel] = table;
+  }
+  issues.push(...checkYieldTables(rows, 'indirect.yieldTables'));
+  return rows;
+}
+
+/**
+ * Reads the yield-table files a spec names (CSV, `x [], dN/dx []` header, relative to the spec's
+ * folder) into inline rows, so that the resolved spec carries the data itself (workers elsewhere get
+ * nothing else, and the spec hash covers the numbers). Problems become issues naming the field.
+ */
+function inlineYieldTableFiles(raw: unknown, specDir: string, issues: Issue[]): unknown {
+  if (!isPlainObject(raw) || !isPlainObject(raw.indirect) || !isPlainObject(raw.indirect.yieldTables)) return raw;
+  const tables: Record<string, unknown> = { ...raw.indirect.yieldTables };
+  for (const [channel, value] of Object.entries(tables)) {
+    if (typeof value !== 'string') continue;
+    const field = `indirect.yieldTables.${channel}`;
+    let text: string;
+    try {
+      text = readFileSync(path.resolve(specDir, value), 'utf8');
+    } catch (err) {
+      issues.push({ code: 'unreadable', path: field, message: `cannot read the yield table: ${(err as Error).message}`, seen: value, allowed: 'a readable CSV file, relative to the spec' });
+      delete tables[channel];
+      continue;
+    }
+    const { curve, issues: found } = parseCurve(text, '', '', field, { zeroY: true });
+    issues.push(...found);
+    if (curve) tables[channel] = curve.x.map((x, i) => [x, curve.y[i]!]);
+    else delete tables[channel];
+  }
+  return { ...raw, indirect: { ...raw.indirect, yieldTables: tables } };
 }
 
 function isPlainObject(v: unknown): v is Record<string, unknown> {
@@ -549,8 +607,10 @@ export function loadSpecFile(file: string): ScanSpec {
   } catch (err) {
     throw new InvalidInputError([{ code: 'invalid_json', path: 'SPEC', message: `the spec is not valid JSON: ${(err as Error).message}`, seen: file, allowed: 'a JSON object' }]);
   }
-  const { spec, issues } = parseSpec(raw);
-  if (!spec) throw new InvalidInputError(issues);
+  const fileIssues: Issue[] = [];
+  const inlined = inlineYieldTableFiles(raw, path.dirname(path.resolve(file)), fileIssues);
+  const { spec, issues } = parseSpec(inlined);
+  if (!spec || fileIssues.length > 0) throw new InvalidInputError([...fileIssues, ...issues]);
   return spec;
 }
 
@@ -579,8 +639,10 @@ export function resolvedSpecJson(spec: ScanSpec): string {
     detectors: spec.setup.detectors,
     targets: spec.setup.targets.map((t) => ({ ...t, energyGeV: [t.energyGeV[0], Number.isFinite(t.energyGeV[1]) ? t.energyGeV[1] : null] })),
     constraints: spec.constraints,
-    // only when on: the resolved form (and hash) of every spec without it stays as before
-    ...(spec.setup.sommerfeld ? { indirect: { sommerfeld: spec.setup.sommerfeld } } : {}),
+    // only when given: the resolved form (and hash) of every spec without them stays as before
+    ...(spec.setup.sommerfeld || spec.setup.yieldTables
+      ? { indirect: { ...(spec.setup.sommerfeld ? { sommerfeld: spec.setup.sommerfeld } : {}), ...(spec.setup.yieldTables ? { yieldTables: spec.setup.yieldTables } : {}) } }
+      : {}),
   };
   return canonicalJson(doc);
 }

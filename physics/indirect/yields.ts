@@ -209,6 +209,8 @@ const FSR_LEPTONS: ReadonlyMap<string, number> = new Map(
 
 /** Final states that have a built-in yield: quarks, gluon pairs (mediator decays), charged leptons. */
 export const FIT_CHANNELS: readonly string[] = Object.freeze([...QUARK_NAMES, 'gg', 'tau', ...FSR_LEPTONS.keys()]);
+/** Final states a user yield table may be given for: those with a fit, and the whole mediator-pair cascade. */
+export const TABLE_CHANNELS: readonly string[] = Object.freeze([...FIT_CHANNELS, 'med_med']);
 
 /**
  * The yield source of a final state: the user table when one is given for it, else the built-in fit,
@@ -249,6 +251,10 @@ export function checkYieldTables(tables: Readonly<Record<string, YieldTable>>, p
   const issues: Issue[] = [];
   for (const [channel, table] of Object.entries(tables)) {
     const p = `${path}.${channel}`;
+    if (!TABLE_CHANNELS.includes(channel)) {
+      issues.push({ code: 'invalid_choice', path: p, message: `no final state '${channel}' takes a yield table`, seen: channel, allowed: TABLE_CHANNELS.join(', ') });
+      continue;
+    }
     if (!Array.isArray(table) || table.length < 2) {
       issues.push({ code: 'type', path: p, message: 'a yield table needs at least two [x, dN/dx] rows', allowed: '[[x, dNdx], ...], x = E/m_chi' });
       continue;

@@ -53,8 +53,10 @@ function parseNumber(text: string): number {
 /**
  * Parses a curve file's text. `xUnit` / `yUnit` are the units the header must carry; `path` is the
  * constraint's file field (`constraints[2].file`) used in every issue, with the line number.
+ * `zeroY` accepts second-column values of 0 (tables that are not interpolated in log y, e.g. photon
+ * yields, which vanish towards x = 1).
  */
-export function parseCurve(text: string, xUnit: string, yUnit: string, path: string): { curve?: LimitCurve; issues: Issue[] } {
+export function parseCurve(text: string, xUnit: string, yUnit: string, path: string, options: { readonly zeroY?: boolean } = {}): { curve?: LimitCurve; issues: Issue[] } {
   const issues: Issue[] = [];
   const lines = text.split(/\r?\n/);
   let header: [string, string] | null = null;
@@ -90,8 +92,12 @@ export function parseCurve(text: string, xUnit: string, yUnit: string, path: str
     }
     const xv = parseNumber(fields[0]!);
     const yv = parseNumber(fields[1]!);
-    if (!(Number.isFinite(xv) && xv > 0 && Number.isFinite(yv) && yv > 0)) {
-      issues.push({ code: 'curve_value', path, message: `${where}: both values must be finite numbers > 0 (log-log interpolation)`, seen: line.slice(0, 80), allowed: 'finite numbers > 0' });
+    if (!(Number.isFinite(xv) && xv > 0 && Number.isFinite(yv) && (options.zeroY ? yv >= 0 : yv > 0))) {
+      issues.push(
+        options.zeroY
+          ? { code: 'curve_value', path, message: `${where}: the first value must be a finite number > 0, the second >= 0`, seen: line.slice(0, 80), allowed: 'x > 0, y >= 0' }
+          : { code: 'curve_value', path, message: `${where}: both values must be finite numbers > 0 (log-log interpolation)`, seen: line.slice(0, 80), allowed: 'finite numbers > 0' },
+      );
       continue;
     }
     if (x.length > 0 && xv <= x[x.length - 1]!) {

@@ -45,6 +45,32 @@ describe('darksieve point', () => {
     expect(off!.flags).not.toContain('sommerfeld');
   });
 
+  it('--spec with photon-yield tables: the flux follows the tables and is no longer flagged approximate', async () => {
+    const { mkdtempSync, writeFileSync, rmSync } = await import('node:fs');
+    const { tmpdir } = await import('node:os');
+    const dir = mkdtempSync(path.join(tmpdir(), 'darksieve-point-yields-'));
+    try {
+      // invented spectra for the test, not physics: the second has twice the photons of the first everywhere
+      const spec = (scale: number) => ({
+        name: 'yields', targets: [{ name: 'gc', kind: 'galactic_centre', coneDeg: 1, energyGeV: [1, null] }],
+        indirect: { yieldTables: Object.fromEntries(['u', 'd', 's', 'c', 'b', 't'].map((q) => [q, [[0.001, 300 * scale], [0.1, 3 * scale], [1, 0.01 * scale]]])) },
+      });
+      const run = (scale: number) => {
+        const file = path.join(dir, `spec-${scale}.json`);
+        writeFileSync(file, JSON.stringify(spec(scale)));
+        const r = cli('--json', '--spec', file, 'm_chi=100', 'm_med=1000', 'mediator=vector', 'dm=dirac');
+        expect(r.status, r.stderr).toBe(0);
+        return JSON.parse(r.stdout) as { flux_gc_cm2s: number; flags: string };
+      };
+      const [one, two] = [run(1), run(2)];
+      expect(one.flux_gc_cm2s).toBeGreaterThan(0);
+      expect(two.flux_gc_cm2s / one.flux_gc_cm2s).toBeCloseTo(2, 12);
+      expect(one.flags).not.toContain('approximate_yields');
+    } finally {
+      rmSync(dir, { recursive: true, force: true });
+    }
+  });
+
   it('prints a readable table with units without --json', () => {
     const r = cli('mediator=axial', 'dm=majorana');
     expect(r.status, r.stderr).toBe(0);

@@ -74,6 +74,8 @@ export const MALFORMED: readonly MalformedCase[] = [
   { what: 'offset beyond the sky', path: 'targets[0].offsetDeg', mutate: (s) => { s.targets[0].offsetDeg = 190; } },
   { what: 'plane mask on a satellite', path: 'targets[0].maskLatDeg', mutate: (s) => { s.targets[0] = { name: 'sat', kind: 'satellite', coneDeg: 0.5, maskLatDeg: 1, distanceKpc: 80, profile: { kind: 'nfw', rsKpc: 1, rhoSGeVcm3: 1 }, energyGeV: [1, 100] }; } },
   { what: 'plane mask of 90 degrees', path: 'targets[0].maskLatDeg', mutate: (s) => { s.targets[0].maskLatDeg = 90; } },
+  { what: 'yield table for a final state that has none', path: 'indirect.yieldTables.photon', mutate: (s) => { s.indirect = { yieldTables: { photon: [[0.1, 1], [1, 0]] } }; } },
+  { what: 'yield table beyond x = 1', path: 'indirect.yieldTables.b[1][0]', mutate: (s) => { s.indirect = { yieldTables: { b: [[0.1, 1], [1.5, 0]] } }; } },
   { what: 'dispersion on the galactic centre', path: 'targets[0].velocityDispersionKmS', mutate: (s) => { s.targets[0].velocityDispersionKmS = 10; } },
 ];
 

@@ -69,6 +69,41 @@ describe('spec validation', () => {
     expect(decodeResolvedSpec(json).setup.targets[1]).toMatchObject({ innerDeg: 0.1, velocityDispersionKmS: 9 });
   });
 
+  it('photon-yield tables: inline rows or CSV files beside the spec, carried inline in the resolved spec; bad ones name their field', async () => {
+    const { mkdtempSync, writeFileSync, rmSync } = await import('node:fs');
+    const { tmpdir } = await import('node:os');
+    const path = await import('node:path');
+    const { loadSpecFile } = await import('../../scheduler/spec.js');
+    const { InvalidInputError } = await import('../../physics/issue.js');
+    const dir = mkdtempSync(path.join(tmpdir(), 'darksieve-yields-'));
+    try {
+      // invented spectra for the test, not physics
+      writeFileSync(path.join(dir, 'b.csv'), '# invented\nx [], dN/dx []\n0.01, 40\n0.1, 2\n1, 0\n');
+      const inline = [[0.05, 3], [0.5, 0.2], [1, 0]];
+      const file = path.join(dir, 'spec.json');
+      writeFileSync(file, JSON.stringify({ ...baseSpec(), indirect: { yieldTables: { b: 'b.csv', tau: inline } } }));
+      const spec = loadSpecFile(file);
+      expect(spec.setup.yieldTables).toEqual({ b: [[0.01, 40], [0.1, 2], [1, 0]], tau: inline });
+      const json = resolvedSpecJson(spec);
+      expect(JSON.parse(json).indirect.yieldTables.b).toEqual([[0.01, 40], [0.1, 2], [1, 0]]);
+      expect(resolvedSpecJson(specFromResolvedJson(json))).toBe(json);
+      expect(decodeResolvedSpec(json).setup.yieldTables).toEqual(spec.setup.yieldTables);
+      expect(specHash(json)).not.toBe(specHash(resolvedSpecJson(parseSpec(baseSpec()).spec!)));
+      // a changed table file is another spec (its numbers are in the hash)
+      writeFileSync(path.join(dir, 'b.csv'), 'x [], dN/dx []\n0.01, 41\n0.1, 2\n1, 0\n');
+      expect(specHash(resolvedSpecJson(loadSpecFile(file)))).not.toBe(specHash(json));
+      // every problem at once, each naming its field
+      writeFileSync(path.join(dir, 'bad.csv'), 'x [], dN/dx [GeV]\n0.5, 1\n0.2, 1\n');
+      writeFileSync(file, JSON.stringify({ ...baseSpec(), indirect: { yieldTables: { b: 'bad.csv', c: 'missing.csv', photon: inline, tau: [[0.5, 1], [1.5, 1]] } } }));
+      const err = (() => { try { loadSpecFile(file); } catch (e) { return e; } return null; })();
+      expect(err).toBeInstanceOf(InvalidInputError);
+      const paths = (err as InstanceType<typeof InvalidInputError>).issues.map((i) => i.path);
+      for (const p of ['indirect.yieldTables.b', 'indirect.yieldTables.c', 'indirect.yieldTables.photon', 'indirect.yieldTables.tau[1][0]']) expect(paths).toContain(p);
+    } finally {
+      rmSync(dir, { recursive: true, force: true });
+    }
+  });
+
   it('the Sommerfeld option: off leaves the resolved form (and the hash of older specs) as it was; on round-trips and enters the knobs', async () => {
     const base = resolvedSpecJson(parseSpec(baseSpec()).spec!);
     expect(base).not.toContain('indirect');

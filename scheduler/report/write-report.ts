@@ -56,17 +56,31 @@ function pretty(json: string): string {
   }
 }
 
-/** Whether sigma v today carries the Sommerfeld factor (a model assumption the page states outright). */
-function sommerfeldText(specJson: unknown): string {
-  let choice: unknown;
+/** The spec's indirect-detection options, or null when the spec cannot be read. */
+function indirectOptions(specJson: unknown): { sommerfeld?: unknown; yieldTables?: Record<string, unknown> } | null {
   try {
-    choice = (JSON.parse(String(specJson)) as { indirect?: { sommerfeld?: unknown } }).indirect?.sommerfeld;
+    return (JSON.parse(String(specJson)) as { indirect?: { sommerfeld?: unknown; yieldTables?: Record<string, unknown> } }).indirect ?? {};
   } catch {
-    return 'unknown (no readable spec)';
+    return null;
   }
-  return choice === 'hulthen'
+}
+
+/** Whether sigma v today carries the Sommerfeld factor (a model assumption the page states outright). */
+export function sommerfeldText(specJson: unknown): string {
+  const options = indirectOptions(specJson);
+  if (!options) return 'unknown (no readable spec)';
+  return options.sommerfeld === 'hulthen'
     ? 'on: Hulthén approximation on the s-wave part of σv today (sigv0 and fluxes), scalar and Dirac vector mediators; not in the relic abundance'
     : 'off: σv today without it (no enhancement by light mediators)';
+}
+
+/** Where the photon spectra come from: the user's tables (in the spec) or the approximate built-in fits. */
+export function yieldsText(specJson: unknown): string {
+  const options = indirectOptions(specJson);
+  if (!options) return 'unknown (no readable spec)';
+  const tables = Object.keys(options.yieldTables ?? {});
+  const fits = 'built-in analytic fits, approximate (factor ~2)';
+  return tables.length === 0 ? fits : `user tables for ${tables.join(', ')} (in the resolved spec); ${fits} for any other final state`;
 }
 
 function provenanceOf(scan: ScanRow): { items: ProvenanceItem[]; documents: { label: string; json: string }[] } {
@@ -79,6 +93,7 @@ function provenanceOf(scan: ScanRow): { items: ProvenanceItem[]; documents: { la
     else items.push({ label: LABELS[key] ?? key, value: String(value) });
   }
   items.push({ label: 'Sommerfeld factor', value: sommerfeldText(scan.spec_json) });
+  items.push({ label: 'photon yields', value: yieldsText(scan.spec_json) });
   if (!('constants_edition' in scan)) items.push({ label: 'constants edition', value: 'not recorded in this ledger' });
   if (!('knobs_json' in scan)) items.push({ label: 'numerical knobs', value: 'not recorded in this ledger' });
   return { items, documents };

@@ -70,9 +70,19 @@ describe('report page content', () => {
     expect(figures[0]!.querySelectorAll('[aria-description="survivors"] circle')).toHaveLength(summary.survivors);
     expect(figures[0]!.querySelectorAll('[aria-description="excluded"] path')).toHaveLength(summary.points - summary.survivors);
     const provenance = doc.querySelectorAll('table')[1]!.textContent ?? '';
-    for (const expected of ['test-physics', 'CODATA2018+PDG2024+Planck2018', 'sha256:test', 'Sommerfeld factoroff']) expect(provenance).toContain(expected);
+    for (const expected of ['test-physics', 'CODATA2018+PDG2024+Planck2018', 'sha256:test', 'Sommerfeld factoroff', 'photon yieldsbuilt-in analytic fits']) expect(provenance).toContain(expected);
     const details = [...doc.querySelectorAll('details summary')].map((s) => s.textContent);
     expect(details).toEqual(expect.arrayContaining(['Resolved scan spec', 'Numerical knobs']));
+  });
+
+  it('states the indirect-detection assumptions a spec made: Sommerfeld factor and photon-yield tables', async () => {
+    const { sommerfeldText, yieldsText } = await import('../../scheduler/report/write-report.js');
+    const spec = JSON.stringify({ indirect: { sommerfeld: 'hulthen', yieldTables: { b: [[0.1, 1], [1, 0]], tau: [[0.1, 1], [1, 0]] } } });
+    expect(sommerfeldText(spec)).toMatch(/^on: Hulthén/);
+    expect(yieldsText(spec)).toMatch(/^user tables for b, tau .*fits, approximate/);
+    expect(sommerfeldText('{}')).toMatch(/^off/);
+    expect(yieldsText('{}')).toMatch(/^built-in analytic fits/);
+    expect(yieldsText('not json')).toMatch(/unknown/);
   });
 
   it('refuses a file as output directory and writes nothing', () => {

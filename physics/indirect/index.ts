@@ -16,8 +16,8 @@
  *
  * Flags: 'approximate_yields' (a built-in fit was used), 'no_photon_yield_<channel>' (a final state
  * without a known yield; it contributes no photons), 'stable_mediator_no_photons' (mediator pairs
- * with no open decay), 'sigv0_not_converged' (an adaptive velocity average missed its tolerance),
- * 'sommerfeld_hulthen' (the factor raised sigv0 or a flux by more than 0.1 %: approximate, see
+ * with no open decay), 'sigv0_not_converged' (an adaptive velocity average, or the Sommerfeld
+ * average, missed its tolerance), 'sommerfeld_hulthen' (the factor raised sigv0 or a flux by more than 0.1 %: approximate, see
  * sommerfeld.ts), 'sommerfeld_not_applied' (asked for, but pseudoscalar and axial exchange give no
  * potential the formula covers).
  *
